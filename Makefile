@@ -1,0 +1,26 @@
+# Two entry points a user needs: `make demo` and `make test`. Both set up .venv on first use.
+PYTHON ?= python3
+VENV := .venv
+BIN := $(VENV)/bin
+STAMP := $(VENV)/.installed
+
+$(STAMP): pyproject.toml
+	$(PYTHON) -m venv $(VENV)
+	$(BIN)/python -m pip install -q --upgrade pip
+	$(BIN)/python -m pip install -q -e '.[test]'
+	touch $(STAMP)
+
+.PHONY: demo test test-fast bench setup
+setup: $(STAMP)
+
+demo: $(STAMP)
+	$(BIN)/geomgen build specs/demo-foilset.toml -o out/demo
+
+test: $(STAMP)
+	$(BIN)/python -m pytest -q
+
+test-fast: $(STAMP)
+	$(BIN)/python -m pytest -q -m "not slow"
+
+bench: $(STAMP)
+	$(BIN)/python bench/bench.py
