@@ -170,9 +170,9 @@ class Section:
 
     def blended(self, other: "Section", w: float) -> "Section":
         """Point-wise blend at equal s: (1 - w) * self + w * other."""
-        if w <= 0.0:
+        if w == 0.0:
             return self
-        if w >= 1.0:
+        if w == 1.0:
             return other
         a_up, a_lo, b_up, b_lo = self._upper, self._lower, other._upper, other._lower
 

@@ -1,0 +1,118 @@
+"""Command line: thin wrappers over the library. Heavy imports live inside the commands so
+``geomgen --help`` never loads the CAD kernel."""
+
+from __future__ import annotations
+
+import sys
+import time
+from pathlib import Path
+
+import click
+
+from . import CAUTION, __version__
+from .errors import GeomgenError, SpecError
+
+
+def _fail(exc: GeomgenError):
+    lines = exc.problems if isinstance(exc, SpecError) else [str(exc)]
+    kind = {2: "spec error", 3: "geometry error"}.get(exc.exit_code, "error")
+    for line in lines:
+        click.echo(f"{kind}: {line}", err=True)
+    if isinstance(exc, SpecError) and len(lines) > 1:
+        click.echo(f"{len(lines)} problems; nothing was written.", err=True)
+    sys.exit(exc.exit_code)
+
+
+def _run(fn, *args, **kwargs):
+    try:
+        return fn(*args, **kwargs)
+    except GeomgenError as exc:
+        _fail(exc)
+
+
+class _Progress:
+    """Prints progress to stderr once a command has run a couple of seconds (or on a tty)."""
+
+    def __init__(self, after: float = 2.0):
+        self.t0 = time.perf_counter()
+        self.after = 0.0 if sys.stderr.isatty() else after
+        self.pending: list[str] = []
+
+    def __call__(self, msg: str):
+        dt = time.perf_counter() - self.t0
+        if dt >= self.after:
+            click.echo(f"[{dt:5.1f} s] {msg}", err=True)
+
+
+@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(__version__, prog_name="geomgen")
+def main():
+    """geomgen: a lifting-surface spec (TOML) to STEP solids and STL meshes, measured back.
+
+    Frame: x aft, y starboard, z up; mm and degrees. Exit codes: 0 ok, 1 a check failed,
+    2 the spec or the command line is wrong, 3 geometry could not be made or written.
+    """
+
+
+@main.command()
+@click.argument("spec", type=click.Path(dir_okay=False))
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
+              help="output folder [default: out/<spec name>]")
+@click.option("--stl-tol", type=click.FloatRange(min=0.001, max=5.0), default=None,
+              help="STL chordal deviation, mm [default 0.05]")
+@click.option("--stl-angle", type=click.FloatRange(min=0.5, max=45.0), default=None,
+              help="STL angular deviation, deg [default 5]")
+@click.option("--no-stl", is_flag=True, help="write STEP only")
+def build(spec, out_dir, stl_tol, stl_angle, no_stl):
+    """Build every surface of SPEC: a STEP solid and a binary STL per part, plus an
+    assembly STEP with every part named."""
+    from . import defaults
+    from .build import build as do_build
+
+    out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
+    res = _run(do_build, spec, out, formats=("step",) if no_stl else ("step", "stl"),
+               stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM,
+               stl_angle=stl_angle or defaults.STL_ANGULAR_TOL_DEG, progress=_Progress())
+    click.echo(format_build_summary(res))
+
+
+def format_build_summary(res) -> str:
+    """Files written and the intended figures per part, as aligned text."""
+    lines = [f"geomgen {__version__}: built '{res.spec_name}' into {res.out_dir} in {res.seconds:.1f} s", ""]
+    lines.append(f"{'part':<16} {'role':<10} {'span mm':>9} {'area cm²':>10} {'AR':>6} {'MAC mm':>8} "
+                 f"{'volume cm³':>11}")
+    for p in res.parts:
+        f = p.figures
+        lines.append(f"{p.name:<16} {p.role:<10} {f.span_mm:9.1f} {f.projected_area_cm2:10.1f} "
+                     f"{f.aspect_ratio:6.2f} {f.mac_mm:8.2f} {f.volume_cm3:11.1f}")
+    lines += ["", "intended figures (from the spec); 'geomgen check' measures the files.", "", "written:"]
+    lines += [f"  {p}" for p in res.files]
+    lines += ["", "CAUTION: " + CAUTION]
+    return "\n".join(lines)
+
+
+@main.command()
+def schema():
+    """Print the JSON Schema of the spec (for editors)."""
+    import json
+
+    from .spec.model import Spec
+
+    click.echo(json.dumps(Spec.model_json_schema(), indent=2))
+
+
+@main.command()
+@click.argument("path", type=click.Path(dir_okay=False), default="foil.toml")
+def new(path):
+    """Write a commented starter spec to PATH (default foil.toml) that builds as written."""
+    from .starter import STARTER
+
+    p = Path(path)
+    if p.exists():
+        _fail(SpecError([f"{p} exists; geomgen does not overwrite files it did not write"]))
+    p.write_text(STARTER)
+    click.echo(f"wrote {p}; build it with: geomgen build {p}")
+
+
+if __name__ == "__main__":  # pragma: no cover
+    main()

@@ -1,0 +1,65 @@
+"""The skin of a surface as one tensor-product B-spline (numpy/scipy; no CAD kernel).
+
+Every loft section is the same loop (upper trailing edge -> leading edge -> lower trailing
+edge) at the same uniform parameter u, so sections correspond point for point. Chordwise,
+each section is interpolated by a cubic B-spline over u (not-a-knot ends); because
+interpolation is linear in the data and every section shares u, the control points of all
+sections share one knot vector. Spanwise, the control points are interpolated by a cubic
+over span position v = y (mm) within each crease-free segment; segments are joined with a
+knot of multiplicity 3 (C0), so the skin follows linear station interpolation without
+overshoot and stays one surface across the centreline of a mirrored part.
+
+The CAD edge turns (knots, poles) into a ``Geom_BSplineSurface`` unchanged, so this module is
+also the exact description of the written skin, which tests sample with scipy.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.interpolate import BSpline, make_interp_spline
+
+from .. import defaults
+from ..sections.base import Section
+
+DEGREE = 3
+
+
+@dataclass
+class Skin:
+    """Tensor B-spline: poles (nu, nv, 3) mm, full knot vectors tu, tv (degree 3 both)."""
+
+    tu: np.ndarray
+    tv: np.ndarray
+    poles: np.ndarray
+
+    def evaluate(self, u, v) -> np.ndarray:
+        """Points (len(u), len(v), 3) at parameters u in [0, 1], v = span position (mm)."""
+        bu = BSpline(self.tu, self.poles, DEGREE, axis=0)(np.atleast_1d(u))  # (nu_eval, nv, 3)
+        return BSpline(self.tv, np.moveaxis(bu, 1, 0), DEGREE, axis=0)(np.atleast_1d(v)).transpose(1, 0, 2)
+
+    @property
+    def v_range(self) -> tuple[float, float]:
+        return float(self.tv[0]), float(self.tv[-1])
+
+
+def build_skin(model, n_side: int = defaults.LOFT_POINTS_PER_SIDE) -> Skin:
+    """Skin through the loft sections of ``model`` (a SurfaceModel)."""
+    u = Section.loop_parameter(n_side)
+    pole_blocks, knot_blocks = [], []
+    tu = None
+    for seg in model.loft_y():
+        grid = np.stack([model.section_loop(float(y), n_side) for y in seg])  # (m, nu, 3)
+        chord_sp = make_interp_spline(u, grid, k=DEGREE, axis=1)
+        tu = chord_sp.t
+        span_sp = make_interp_spline(seg, chord_sp.c, k=DEGREE, axis=1)  # c: (mv, nu, 3)
+        pole_blocks.append(span_sp.c)
+        knot_blocks.append(span_sp.t)
+    poles = pole_blocks[0]
+    tv = knot_blocks[0][:-1]  # drop one end knot: the joint gets multiplicity 3
+    for blk, kn in zip(pole_blocks[1:], knot_blocks[1:]):
+        poles = np.concatenate([poles, blk[1:]], axis=0)
+        tv = np.concatenate([tv, kn[DEGREE + 1:-1]])
+    tv = np.concatenate([tv, knot_blocks[-1][-1:]])
+    return Skin(tu=np.asarray(tu), tv=tv, poles=np.ascontiguousarray(np.moveaxis(poles, 0, 1)))

@@ -1,0 +1,159 @@
+"""One surface placed in the datum frame: the only place that turns a station into 3D points.
+
+Frames (see DEVELOPERS.md for the table):
+
+* local frame of the surface: X aft along the chord line at zero twist, Y along the span
+  from the root reference point, Z toward the section's upper side. Sections lie in planes
+  Y = const (streamwise cuts); sweep and dihedral are offsets of the reference point.
+* twist at a station, then the surface's incidence, rotate about an axis parallel to Y
+  through the reference point (station) and the root reference point (incidence);
+  positive raises the leading edge.
+* orientation maps local to datum axes: horizontal (X, Y, Z) -> (x, y, z); vertical-up
+  (span along +z) -> (x, -Z, Y); vertical-down (span along -z) -> (x, Z, -Y). Then the
+  root reference point is moved to ``position``.
+"""
+
+from __future__ import annotations
+
+import math
+from functools import lru_cache
+
+import numpy as np
+
+from .. import defaults
+from ..sections.base import Section
+from .planform import Planform
+
+#: local -> datum rotation (columns: datum images of local X, Y, Z).
+ORIENTATION = {
+    "horizontal": np.eye(3),
+    "vertical-up": np.array([[1.0, 0, 0], [0, 0, -1.0], [0, 1.0, 0]]),
+    "vertical-down": np.array([[1.0, 0, 0], [0, 0, 1.0], [0, -1.0, 0]]),
+}
+
+
+def rot_y(deg: float) -> np.ndarray:
+    """Rotation about +Y by ``deg``; positive raises a point ahead of the axis (leading edge up)."""
+    a = math.radians(deg)
+    c, s = math.cos(a), math.sin(a)
+    return np.array([[c, 0.0, s], [0.0, 1.0, 0.0], [-s, 0.0, c]])
+
+
+class SurfaceModel:
+    """Geometry of one surface. Lengths mm, angles deg.
+
+    Parameters
+    ----------
+    spec : SurfaceSpec
+    planform : Planform
+    sections : dict
+        Planform section key -> unit-chord :class:`Section` (before trailing-edge finishing).
+    """
+
+    def __init__(self, spec, planform: Planform, sections: dict):
+        self.spec = spec
+        self.name = spec.name
+        self.role = spec.role
+        self.mirror = spec.mirror
+        self.orientation = spec.orientation
+        self.planform = planform
+        self._sections = sections
+        self.R = ORIENTATION[spec.orientation] @ rot_y(spec.incidence)
+        self.position = np.asarray(spec.position, float)
+        self._section_at = lru_cache(maxsize=512)(self._section_uncached)
+
+    # -- span ---------------------------------------------------------------------
+    @property
+    def half_span(self) -> float:
+        """Root-to-tip length of the stations, mm."""
+        return self.planform.half_span
+
+    @property
+    def y_range(self) -> tuple[float, float]:
+        """Span coordinate range of the whole part (mirrored: -b/2 .. b/2), mm."""
+        lo = -self.half_span if self.mirror else float(self.planform.y[0])
+        return lo, self.half_span
+
+    @property
+    def span_axis(self) -> np.ndarray:
+        """(3,) datum direction of local Y (unchanged by incidence)."""
+        return ORIENTATION[self.orientation][:, 1]
+
+    @property
+    def lift_axis(self) -> np.ndarray:
+        """(3,) datum normal of the projection plane (z for horizontal, y for vertical)."""
+        return np.abs(ORIENTATION[self.orientation][:, 2])
+
+    # -- sections -------------------------------------------------------------------
+    def base_section(self, y: float) -> Section:
+        """Unit-chord section at span ``y`` before trailing-edge finishing (blend of stations)."""
+        w = self.planform.weights(y)
+        items = sorted(w.items(), key=lambda kv: -kv[1])
+        sec, acc = self._sections[items[0][0]], items[0][1]
+        for key, wi in items[1:]:
+            acc += wi
+            sec = sec.blended(self._sections[key], wi / acc)
+        return sec
+
+    def _section_uncached(self, y: float) -> Section:
+        chord = float(self.planform("chord", y))
+        return self.base_section(y).with_te_thickness(self.spec.te_thickness / chord)
+
+    def section(self, y: float) -> Section:
+        """Finished unit-chord section at span ``y`` (trailing edge of te_thickness mm)."""
+        return self._section_at(round(abs(float(y)), 9))
+
+    # -- placement ------------------------------------------------------------------
+    def place(self, y: float, pts2d: np.ndarray) -> np.ndarray:
+        """Unit-chord section points (n, 2) at span ``y`` -> (n, 3) datum points, mm."""
+        pf = self.planform
+        c, xr, zr, tw = (float(pf(k, y)) for k in ("chord", "x", "z", "twist"))
+        ref = self.spec.reference
+        d = np.column_stack([(pts2d[:, 0] - ref) * c, np.zeros(len(pts2d)), pts2d[:, 1] * c])
+        local = d @ rot_y(tw).T + np.array([xr, y, zr])
+        return local @ self.R.T + self.position
+
+    def section_loop(self, y: float, n: int = defaults.LOFT_POINTS_PER_SIDE) -> np.ndarray:
+        """(2n+1, 3) datum points of the finished section at span ``y``, TE upper -> LE -> TE lower."""
+        return self.place(y, self.section(y).loop(n))
+
+    def camber_points(self, y: float, xc) -> np.ndarray:
+        """(k, 3) datum points of the mean line at chord fractions ``xc`` (for the vortex lattice)."""
+        sec = self.base_section(y)
+        xc = np.asarray(xc, float)
+        xu, yu = sec.upper(xc)
+        xl, yl = sec.lower(xc)
+        return self.place(y, np.column_stack([0.5 * (xu + xl), 0.5 * (yu + yl)]))
+
+    # -- loft layout ------------------------------------------------------------------
+    def loft_breaks(self) -> list[float]:
+        """Span positions where the skin may have a crease (C0): the centreline of a
+        mirrored part and, for linear interpolation, every station."""
+        ys = list(self.planform.y)
+        inner = ys[1:-1] if self.spec.interpolation == "linear" else []
+        half = [ys[0]] + inner + [ys[-1]]
+        if self.mirror:
+            return [-v for v in half[::-1] if v > 0] + half
+        return half
+
+    def loft_y(self) -> list[np.ndarray]:
+        """Loft section positions, one array per crease-free segment (mm).
+
+        Sections are spread by arc of a quarter circle over each half span, so they crowd
+        toward the tip where curved planforms change fastest; every segment gets at least
+        ``LOFT_SECTIONS_PER_INTERVAL_MIN``.
+        """
+        b = self.half_span
+        n_half = self.spec.loft_sections
+        breaks = self.loft_breaks()
+        segs = []
+        for a, c in zip(breaks[:-1], breaks[1:]):
+            # map |y| through theta = asin(|y|/b) so spacing is uniform in theta
+            ta, tc = (math.asin(np.clip(v / b, -1, 1)) for v in (a, c))
+            n = max(defaults.LOFT_SECTIONS_PER_INTERVAL_MIN,
+                    int(math.ceil(abs(tc - ta) / (math.pi / 2) * n_half)) + 1)
+            th = np.linspace(ta, tc, n)
+            y = b * np.sin(th)
+            y[0], y[-1] = a, c
+            segs.append(y)
+        return segs

@@ -1,0 +1,175 @@
+"""Read a spec file: TOML -> :class:`Spec`, every problem reported at once.
+
+Messages have the form ``<file>: <field path>: <what is wrong>, got <value>``; unknown keys
+come with the closest valid name. Nothing here raises anything but :class:`SpecError`.
+"""
+
+from __future__ import annotations
+
+import difflib
+import tomllib
+import typing
+from pathlib import Path
+
+from pydantic import BaseModel, ValidationError
+
+from ..defaults import MIN_STATION_GAP_MM
+from ..errors import SpecError
+from .model import Spec
+
+
+def _model_at(loc: tuple) -> type[BaseModel] | None:
+    """The pydantic model class that owns the last element of ``loc`` (for suggestions)."""
+    tp: typing.Any = Spec
+    for part in loc[:-1]:
+        tp = _unwrap(tp)
+        if isinstance(part, int) or (isinstance(tp, type) and not issubclass(tp, BaseModel)):
+            args = typing.get_args(tp)
+            tp = args[-1] if args else None
+            continue
+        if isinstance(tp, type) and issubclass(tp, BaseModel):
+            field = tp.model_fields.get(part)
+            if field is None:
+                return None
+            tp = field.annotation
+        else:
+            args = typing.get_args(tp)  # dict[str, X] key
+            tp = args[-1] if args else None
+    tp = _unwrap(tp)
+    return tp if isinstance(tp, type) and issubclass(tp, BaseModel) else None
+
+
+def _unwrap(tp):
+    """Optional[X] / Union[X, None] -> X; list[X] and dict[K, X] stay as they are."""
+    while typing.get_origin(tp) is typing.Union:
+        args = [a for a in typing.get_args(tp) if a is not type(None)]
+        models = [a for a in args if isinstance(a, type) and issubclass(a, BaseModel)]
+        tp = models[0] if models else args[0]
+    if typing.get_origin(tp) in (list, dict, tuple):
+        return tp if typing.get_origin(tp) is not tuple else tuple
+    return tp
+
+
+def _path(loc: tuple, data) -> str:
+    """('surface', 0, 'station', 1, 'chord') -> 'surface[0] "front-wing" station[1] chord'."""
+    out, node = [], data
+    for part in loc:
+        if isinstance(part, int):
+            out[-1] += f"[{part}]"
+            try:
+                node = node[part]
+                if isinstance(node, dict) and isinstance(node.get("name"), str):
+                    out[-1] += f' "{node["name"]}"'
+            except (IndexError, KeyError, TypeError):
+                node = None
+        else:
+            out.append(str(part))
+            node = node.get(part) if isinstance(node, dict) else None
+    return " ".join(out) if out else "(top level)"
+
+
+def _describe(err: dict, data) -> str:
+    loc = tuple(p for p in err["loc"] if not (isinstance(p, str) and p.startswith(("function-", "tagged-"))))
+    kind = err["type"]
+    if kind == "extra_forbidden":
+        model = _model_at(loc)
+        names = list(model.model_fields) if model else []
+        close = difflib.get_close_matches(str(loc[-1]), names, n=1, cutoff=0.5)
+        hint = f"; did you mean '{close[0]}'?" if close else (f"; valid keys: {', '.join(names)}" if names else "")
+        return f"{_path(loc[:-1], data)}: unknown key '{loc[-1]}'{hint}"
+    if kind == "missing":
+        return f"{_path(loc, data)}: required field missing"
+    msg = err["msg"].removeprefix("Value error, ")
+    if "input" in err and kind not in ("value_error", "model_type", "dict_type") and not isinstance(err["input"], (dict, list)):
+        msg += f", got {err['input']!r}"
+    return f"{_path(loc, data)}: {msg}"
+
+
+def _cross_checks(data: dict) -> list[str]:
+    """Problems pydantic cannot see alone: section names used by stations and blends."""
+    problems = []
+    sections = data.get("sections") if isinstance(data.get("sections"), dict) else {}
+    names = list(sections)
+    surfaces = data.get("surface") if isinstance(data.get("surface"), list) else []
+    seen = {}
+    for i, surf in enumerate(surfaces):
+        if not isinstance(surf, dict):
+            continue
+        nm = surf.get("name")
+        if isinstance(nm, str):
+            if nm in seen:
+                problems.append(f"{_path(('surface', i, 'name'), data)}: name '{nm}' is already used by surface[{seen[nm]}]")
+            seen.setdefault(nm, i)
+        stations = surf.get("station") if isinstance(surf.get("station"), list) else []
+        problems += _station_order(data, i, stations, surf.get("mirror") is True)
+        for j, st in enumerate(stations):
+            if not isinstance(st, dict):
+                continue
+            refs = [("section", st.get("section"))]
+            if isinstance(st.get("blend"), dict):
+                refs.append(("blend section", st["blend"].get("section")))
+            for what, ref in refs:
+                if isinstance(ref, str) and ref not in sections:
+                    close = difflib.get_close_matches(ref, names, n=1, cutoff=0.5)
+                    hint = f"; did you mean '{close[0]}'?" if close else f"; defined: {', '.join(names) or 'none'}"
+                    loc = ("surface", i, "station", j, "section" if what == "section" else "blend")
+                    problems.append(f"{_path(loc, data)}: unknown {what} '{ref}'{hint}")
+    return problems
+
+
+def _station_order(data, i, stations, mirror) -> list[str]:
+    """Stations strictly increasing in span, not nearly coincident, root at 0 when mirrored."""
+    out = []
+    ys = [st.get("y") if isinstance(st, dict) else None for st in stations]
+    at = lambda j, key: _path(("surface", i, "station", j, key), data)
+    for j in range(1, len(ys)):
+        a, b = ys[j - 1], ys[j]
+        if not all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in (a, b)):
+            continue
+        if b <= a:
+            out.append(f"{at(j, 'y')}: must be greater than station[{j - 1}].y = {a:g} "
+                       f"(stations strictly increasing in span), got {b:g}")
+        elif b - a < MIN_STATION_GAP_MM:
+            out.append(f"{at(j, 'y')}: within {MIN_STATION_GAP_MM:g} mm of station[{j - 1}] "
+                       f"(nearly coincident sections make sliver solids), got {b:g}")
+    if mirror and ys and isinstance(ys[0], (int, float)) and ys[0] != 0:
+        out.append(f"{at(0, 'y')}: must be 0 for a mirrored surface (the halves meet there), got {ys[0]:g}")
+    if stations and isinstance(stations[0], dict):
+        for key, alt in (("sweep", "x"), ("dihedral", "z")):
+            if key in stations[0]:
+                out.append(f"{at(0, key)}: the first station has no previous one to angle from; give '{alt}'")
+    return out
+
+
+def load_spec_text(text: str, source: str = "<spec>") -> Spec:
+    """Validate spec text; raise :class:`SpecError` listing every problem, each prefixed by ``source``."""
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise SpecError([f"{source}: not valid TOML: {exc}"]) from None
+    problems = []
+    spec = None
+    try:
+        spec = Spec.model_validate(data)
+    except ValidationError as exc:
+        problems += [_describe(e, data) for e in exc.errors()]
+    problems += _cross_checks(data)
+    if problems:
+        raise SpecError([f"{source}: {p}" for p in problems])
+    return spec
+
+
+def load_spec(path) -> Spec:
+    """Read and validate a spec file. The spec keeps its folder for relative file paths."""
+    path = Path(path)
+    try:
+        raw = path.read_bytes()
+    except OSError as exc:
+        raise SpecError([f"{path}: cannot read the spec: {exc.strerror or exc}"]) from None
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError:
+        raise SpecError([f"{path}: not a text file (not UTF-8)"]) from None
+    spec = load_spec_text(text, str(path))
+    spec._source = path  # type: ignore[attr-defined]
+    return spec

@@ -1,0 +1,172 @@
+"""Pydantic models of the spec (``format = 1``). Units: mm and degrees.
+
+Field descriptions end up in ``geomgen schema`` (JSON Schema for editors), so they are
+written for the person editing a spec.
+"""
+
+from __future__ import annotations
+
+import re
+from typing import Literal, Optional, Union
+
+from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
+
+from .. import defaults
+from ..sections.naca import parse_designation
+
+
+class _Strict(BaseModel):
+    model_config = ConfigDict(extra="forbid", validate_default=True)
+
+
+_TOL = re.compile(r"^\s*([0-9]*\.?[0-9]+(?:[eE][-+]?\d+)?)\s*%\s*$")
+
+
+class Expectation(_Strict):
+    """A number from the calculation sheet with its tolerance."""
+
+    value: float = Field(description="expected value, in the figure's unit")
+    tol: Union[float, str] = Field(
+        description="absolute tolerance in the figure's unit (e.g. 0.5) or a percentage ('0.5%')")
+
+    @field_validator("tol")
+    @classmethod
+    def _tol(cls, v):
+        if isinstance(v, str):
+            if not _TOL.match(v):
+                raise ValueError(f"tolerance must be a number or a percentage like '0.5%', got '{v}'")
+        elif v < 0:
+            raise ValueError(f"tolerance must be >= 0, got {v}")
+        return v
+
+    def tolerance_for(self, value: float) -> float:
+        """Absolute tolerance (figure units) around ``value``."""
+        if isinstance(self.tol, str):
+            return abs(value) * float(_TOL.match(self.tol).group(1)) / 100.0
+        return float(self.tol)
+
+
+#: Figures a surface's ``expect`` table may name (definitions in DEVELOPERS.md).
+EXPECTABLE = ("span_mm", "projected_area_cm2", "aspect_ratio", "mac_mm", "mac_y_mm",
+              "mac_le_x_mm", "mac_qc_x_mm", "root_chord_mm", "tip_chord_mm", "taper_ratio",
+              "sweep_qc_deg", "volume_cm3", "wetted_area_cm2")
+
+
+class Expect(_Strict):
+    """The calculation sheet's numbers for one surface."""
+
+    model_config = ConfigDict(extra="forbid")
+    span_mm: Optional[Expectation] = None
+    projected_area_cm2: Optional[Expectation] = None
+    aspect_ratio: Optional[Expectation] = None
+    mac_mm: Optional[Expectation] = None
+    mac_y_mm: Optional[Expectation] = None
+    mac_le_x_mm: Optional[Expectation] = None
+    mac_qc_x_mm: Optional[Expectation] = None
+    root_chord_mm: Optional[Expectation] = None
+    tip_chord_mm: Optional[Expectation] = None
+    taper_ratio: Optional[Expectation] = None
+    sweep_qc_deg: Optional[Expectation] = None
+    volume_cm3: Optional[Expectation] = None
+    wetted_area_cm2: Optional[Expectation] = None
+
+
+class SectionSpec(_Strict):
+    """A named section: a NACA designation or a coordinate file, with optional changes."""
+
+    naca: Optional[str] = Field(None, description="NACA 4- or 5-digit designation, e.g. '2412', '23012'")
+    file: Optional[str] = Field(None, description="coordinate file, relative to the spec file")
+    closed_te: bool = Field(False, description="NACA only: closed trailing-edge thickness coefficient")
+    thickness_pct: Optional[float] = Field(
+        None, gt=0.5, le=40.0, description="rescale so the maximum thickness is this % of chord")
+    invert: bool = Field(False, description="mirror the camber (pressure side on top)")
+
+    @field_validator("naca")
+    @classmethod
+    def _designation(cls, v):
+        if v is not None:
+            parse_designation(v)
+        return v
+
+    @model_validator(mode="after")
+    def _one_source(self):
+        if (self.naca is None) == (self.file is None):
+            raise ValueError("give exactly one of 'naca' or 'file'")
+        return self
+
+
+class Blend(_Strict):
+    """Blend this station's section toward another one."""
+
+    section: str = Field(description="name of the section blended in")
+    fraction: float = Field(ge=0.0, le=1.0, description="0 = own section, 1 = the other one")
+
+
+class StationSpec(_Strict):
+    """One spanwise station. Offsets are of the reference point, in the surface's own frame."""
+
+    y: float = Field(ge=0.0, description="spanwise distance from the root reference point, mm")
+    chord: float = Field(gt=0.0, le=5000.0, description="chord, mm")
+    x: Optional[float] = Field(None, ge=-5000, le=5000,
+                               description="aft offset of the reference point (sweep), mm; or give 'sweep'")
+    sweep: Optional[float] = Field(None, gt=-80.0, lt=80.0,
+                                   description="panel sweep of the reference line from the previous station, deg")
+    z: Optional[float] = Field(None, ge=-5000, le=5000,
+                               description="offset normal to the span toward the upper side (dihedral), mm; "
+                                           "negative is anhedral; or give 'dihedral'")
+    dihedral: Optional[float] = Field(None, gt=-80.0, lt=80.0,
+                                      description="panel dihedral from the previous station, deg (negative: anhedral)")
+    twist: float = Field(0.0, ge=-45.0, le=45.0, description="twist, deg, positive = leading edge up")
+    section: str = Field(description="name of a section in [sections]")
+    blend: Optional[Blend] = None
+
+    @model_validator(mode="after")
+    def _either(self):
+        if self.x is not None and self.sweep is not None:
+            raise ValueError("give 'x' or 'sweep', not both")
+        if self.z is not None and self.dihedral is not None:
+            raise ValueError("give 'z' or 'dihedral', not both")
+        return self
+
+
+class SurfaceSpec(_Strict):
+    """One part: front wing, stabilizer, mast or fin."""
+
+    name: str = Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$",
+                      description="part name, used in file names (letters, digits, - _ .)")
+    role: Literal["wing", "stabilizer", "mast", "fin"]
+    orientation: Literal["horizontal", "vertical-up", "vertical-down"] = Field(
+        "horizontal", description="horizontal: span along +y; vertical-up: span along +z (mast); "
+                                  "vertical-down: span along -z (fin)")
+    mirror: bool = Field(False, description="stations describe one half; the part spans both sides")
+    position: tuple[float, float, float] = Field(
+        (0.0, 0.0, 0.0), description="datum position of the root reference point [x, y, z], mm")
+    reference: float = Field(0.25, ge=0.0, le=1.0,
+                             description="chord fraction of the reference point (twist and incidence axis)")
+    incidence: float = Field(0.0, ge=-30.0, le=30.0, description="deg, positive = leading edge up")
+    te_thickness: float = Field(defaults.TE_THICKNESS_MM, ge=0.0, le=20.0,
+                                description="finished trailing-edge thickness, mm (0 = sharp)")
+    interpolation: Literal["linear", "smooth"] = Field(
+        "linear", description="between stations: linear, or smooth (shape-preserving cubic)")
+    loft_sections: int = Field(defaults.LOFT_SECTIONS, ge=4, le=400,
+                               description="loft sections per half span (more: closer to a curved planform)")
+    tip: Literal["flat", "round"] = Field("flat", description="tip closure")
+    station: list[StationSpec] = Field(min_length=2, description="spanwise stations, root first")
+    expect: Optional[Expect] = None
+
+    # station order and spacing are checked on the raw data in load.py, so they are
+    # reported even when other fields of the same surface are wrong
+
+
+class Datum(_Strict):
+    origin: str = Field(description="where the datum origin is, in words")
+
+
+class Spec(_Strict):
+    """A foil set: named sections and the surfaces built from them."""
+
+    format: Literal[1] = Field(description="spec format version")
+    name: str = Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$", description="set name, used in file names")
+    datum: Datum
+    sections: dict[str, SectionSpec] = Field(min_length=1)
+    surface: list[SurfaceSpec] = Field(min_length=1)
