@@ -170,7 +170,6 @@ def raises(tmp_path, content, pattern, name="bad.dat"):
     with pytest.raises(SpecError) as exc:
         read_coordinates(path)
     msg = str(exc.value)
-    print(msg)
     assert name in msg, msg
     assert re.search(pattern, msg), msg
     return msg
@@ -264,7 +263,7 @@ def test_too_many_lines(tmp_path):
 
 
 def test_too_many_bytes(tmp_path):
-    raises(tmp_path, good_loop() + "#" * (10 * 1024 * 1024), r"\d+\.\d MB; coordinate files over 10 MB are refused")
+    raises(tmp_path, good_loop() + "#" * 10_000_000, r"\d+\.\d MB; coordinate files over 10 MB are refused")
 
 
 def test_parse_coordinates_names_its_source():
@@ -272,3 +271,5 @@ def test_parse_coordinates_names_its_source():
         parse_coordinates("", source="pasted")
     with pytest.raises(SpecError, match=r"^pasted: binary file"):
         parse_coordinates(b"\x00\x01", source="pasted")
+    with pytest.raises(SpecError, match=r"^pasted: 10\.0 MB; coordinate files over 10 MB are refused"):
+        parse_coordinates("#" * 10_000_001, source="pasted")

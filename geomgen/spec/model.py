@@ -13,6 +13,7 @@ from pydantic import BaseModel, ConfigDict, Field, field_validator, model_valida
 
 from .. import defaults
 from ..sections.naca import parse_designation
+from .flight import FlightSpec
 
 
 class _Strict(BaseModel):
@@ -170,3 +171,4 @@ class Spec(_Strict):
     datum: Datum
     sections: dict[str, SectionSpec] = Field(min_length=1)
     surface: list[SurfaceSpec] = Field(min_length=1)
+    flight: Optional[FlightSpec] = Field(None, description="mass, speeds and fluid for the hydrodynamics")
