@@ -4,13 +4,45 @@ from __future__ import annotations
 
 import time
 from dataclasses import dataclass, field
+from functools import cached_property
 from pathlib import Path
 from typing import Callable
 
+import numpy as np
+
 from . import __version__, defaults
-from .geometry import build_models
+from .geometry import SurfaceModel, build_models
 from .geometry.figures import Figures, intended_figures
+from .geometry.skin import Skin, build_skin
+from .geometry.tessellate import tessellate
+from .sections.base import Section
 from .spec import load_spec
+
+
+@dataclass
+class Part:
+    """One surface on its way to files: model, skin, and (lazily) solid and meshes."""
+
+    model: SurfaceModel
+
+    @property
+    def name(self) -> str:
+        return self.model.name
+
+    @cached_property
+    def skin(self) -> Skin:
+        return build_skin(self.model)
+
+    @cached_property
+    def solid(self):
+        from .cad.loft import solid_from_skin
+
+        return solid_from_skin(self.skin, te_open=self.model.spec.te_thickness > 0, name=self.name)
+
+    def mesh(self, tol: float = defaults.STL_LINEAR_TOL_MM):
+        """(vertices (n, 3) mm, faces (m, 3)) of the same skin, chordal deviation ``tol`` mm."""
+        v0 = np.concatenate(self.model.loft_y())
+        return tessellate(self.skin, self.model.spec.te_thickness > 0, Section.loop_parameter(), v0, tol)
 
 
 @dataclass
@@ -31,38 +63,36 @@ class BuildResult:
 
 
 def build(spec_path, out_dir, *, formats=("step", "stl"), stl_tol: float = defaults.STL_LINEAR_TOL_MM,
-          stl_angle: float = defaults.STL_ANGULAR_TOL_DEG, assembly: bool = True,
-          progress: Callable[[str], None] | None = None) -> BuildResult:
+          assembly: bool = True, progress: Callable[[str], None] | None = None) -> BuildResult:
     """Build every surface of the spec at ``spec_path`` into ``out_dir``.
 
     Raises SpecError (exit 2), GeometryError or ExportError (exit 3). Either every file is
     written, or none is and earlier outputs stay as they were.
     """
     from .cad.export import EXPORTERS
-    from .cad.loft import loft_surface
     from .outputs import Staging
 
     t0 = time.perf_counter()
     say = progress or (lambda msg: None)
     spec = load_spec(spec_path)
-    models = build_models(spec)
-    parts = [PartResult(m.name, m.role, intended_figures(m)) for m in models]
-    solids = []
-    for m in models:
-        say(f"lofting {m.name}")
-        solids.append((m.name, loft_surface(m)))
-    opts = {"stl_tol": stl_tol, "stl_angle": stl_angle, "assembly_name": spec.name}
+    parts = [Part(m) for m in build_models(spec)]
+    results = [PartResult(p.name, p.model.role, intended_figures(p.model)) for p in parts]
+    for p in parts:  # make every solid (and so refuse invalid geometry) before writing anything
+        say(f"lofting {p.name}")
+        p.solid
+    opts = {"stl_tol": stl_tol, "assembly_name": spec.name}
     with Staging(out_dir) as stage:
-        for part, (name, solid) in zip(parts, solids):
+        for p, res in zip(parts, results):
             for fmt in formats:
                 suffix, writer = EXPORTERS[fmt]
-                fname = f"{spec.name}-{name}{suffix}"
+                fname = f"{spec.name}-{p.name}{suffix}"
                 say(f"writing {fname}")
-                writer([(name, solid)], stage.path(fname), opts)
-                part.files.append(Path(out_dir) / fname)
-        if assembly and "step" in formats and len(solids) > 1:
+                writer([p], stage.path(fname), opts)
+                res.files.append(Path(out_dir) / fname)
+        if assembly and "step" in formats and len(parts) > 1:
             fname = f"{spec.name}-assembly.step"
             say(f"writing {fname}")
-            EXPORTERS["step"][1](solids, stage.path(fname), opts)
-        files = stage.commit({"spec": str(spec_path), "geomgen_version": __version__})
-    return BuildResult(spec.name, Path(out_dir), parts, files, time.perf_counter() - t0)
+            EXPORTERS["step"][1](parts, stage.path(fname), opts)
+        files = stage.commit({"spec": Path(spec_path).name, "geomgen_version": __version__,
+                              "stl_tol_mm": stl_tol if "stl" in formats else None})
+    return BuildResult(spec.name, Path(out_dir), results, files, time.perf_counter() - t0)

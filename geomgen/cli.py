@@ -59,11 +59,9 @@ def main():
 @click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
               help="output folder [default: out/<spec name>]")
 @click.option("--stl-tol", type=click.FloatRange(min=0.001, max=5.0), default=None,
-              help="STL chordal deviation, mm [default 0.05]")
-@click.option("--stl-angle", type=click.FloatRange(min=0.5, max=45.0), default=None,
-              help="STL angular deviation, deg [default 5]")
+              help="STL chordal deviation from the B-spline surface, mm [default 0.05]")
 @click.option("--no-stl", is_flag=True, help="write STEP only")
-def build(spec, out_dir, stl_tol, stl_angle, no_stl):
+def build(spec, out_dir, stl_tol, no_stl):
     """Build every surface of SPEC: a STEP solid and a binary STL per part, plus an
     assembly STEP with every part named."""
     from . import defaults
@@ -71,8 +69,7 @@ def build(spec, out_dir, stl_tol, stl_angle, no_stl):
 
     out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
     res = _run(do_build, spec, out, formats=("step",) if no_stl else ("step", "stl"),
-               stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM,
-               stl_angle=stl_angle or defaults.STL_ANGULAR_TOL_DEG, progress=_Progress())
+               stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM, progress=_Progress())
     click.echo(format_build_summary(res))
 
 

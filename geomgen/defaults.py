@@ -24,9 +24,8 @@ TE_MAX_FRACTION_OF_RAMP_THICKNESS = 0.5
 #: source: finished parts carry about 0.5-1.5 mm flat).
 TE_THICKNESS_MM = 0.5
 
-#: STL linear deflection (mm) and angular deflection (deg).
+#: STL chordal deviation from the B-spline skin, mm (mid-edge distance bound).
 STL_LINEAR_TOL_MM = 0.05
-STL_ANGULAR_TOL_DEG = 5.0
 
 #: Relative accuracy asked of OCP's volume/area integrals (explicit; the library's
 #: default was seen far off on lofted B-spline solids).

@@ -1,62 +1,87 @@
 """Writers, one function per format, looked up in :data:`EXPORTERS`.
 
-Each writer takes ``(parts, path, options)`` where ``parts`` is a list of
-``(name, TopoDS_Shape)``; it writes exactly one file at ``path`` or raises ExportError.
-Callers write into a staging folder and move files into place only when all succeeded.
+Each writer takes ``(parts, path, options)``: ``parts`` is a list of objects with ``.name``,
+``.solid`` (OCP shape) and ``.mesh(tol)`` (vertices, faces); it writes exactly one file at
+``path`` or raises ExportError, never returns a status. Callers write into a staging
+folder and move files into place only when all succeeded (:mod:`geomgen.outputs`).
 """
 
 from __future__ import annotations
 
-import math
 from pathlib import Path
 
-from OCP.BRepMesh import BRepMesh_IncrementalMesh
-from OCP.StlAPI import StlAPI_Writer
-from OCP.TopoDS import TopoDS_Compound, TopoDS_Shape
-from OCP.BRep import BRep_Builder
+import numpy as np
 
 from .. import defaults
 from ..errors import ExportError
 
 
-def _compound(shapes) -> TopoDS_Shape:
-    comp = TopoDS_Compound()
-    bld = BRep_Builder()
-    bld.MakeCompound(comp)
-    for s in shapes:
-        bld.Add(comp, s)
-    return comp
-
-
 def write_step(parts, path: Path, options: dict) -> None:
-    """STEP AP214 in mm; every part a named product (one part or an assembly)."""
-    import cadquery as cq
+    """STEP AP214 in mm through OCP's XCAF writer; every part a named product.
 
-    assy = cq.Assembly(name=options.get("assembly_name", Path(path).stem))
-    for name, shape in parts:
-        assy.add(cq.Shape.cast(shape), name=name)
-    try:
-        assy.export(str(path), exportType="STEP", unit="MM")
-    except Exception as exc:  # the kernel reports failures as exceptions of its own
-        raise ExportError(f"{path}: STEP writer failed: {exc}") from exc
+    One part gives a file with that one named product; several give an assembly named
+    ``options['assembly_name']`` with a named component per part.
+    """
+    from OCP.IFSelect import IFSelect_RetDone
+    from OCP.Interface import Interface_Static
+    from OCP.STEPCAFControl import STEPCAFControl_Writer
+    from OCP.STEPControl import STEPControl_AsIs
+    from OCP.TCollection import TCollection_ExtendedString
+    from OCP.TDataStd import TDataStd_Name
+    from OCP.TDocStd import TDocStd_Document
+    from OCP.TopLoc import TopLoc_Location
+    from OCP.XCAFDoc import XCAFDoc_DocumentTool
+
+    doc = TDocStd_Document(TCollection_ExtendedString("geomgen"))
+    tool = XCAFDoc_DocumentTool.ShapeTool_s(doc.Main())
+    name = lambda label, text: TDataStd_Name.Set_s(label, TCollection_ExtendedString(text))
+    if len(parts) == 1:
+        name(tool.AddShape(parts[0].solid, False), parts[0].name)
+    else:
+        top = tool.NewShape()
+        name(top, options.get("assembly_name", Path(path).stem))
+        for p in parts:
+            lbl = tool.AddShape(p.solid, False)
+            name(lbl, p.name)
+            name(tool.AddComponent(top, lbl, TopLoc_Location()), p.name)
+        tool.UpdateAssemblies()
+    Interface_Static.SetCVal_s("write.step.unit", "MM")
+    Interface_Static.SetCVal_s("write.step.schema", "AP214IS")
+    writer = STEPCAFControl_Writer()
+    writer.SetNameMode(True)
+    if not writer.Transfer(doc, STEPControl_AsIs) or writer.Write(str(path)) != IFSelect_RetDone:
+        raise ExportError(f"{path}: STEP writer failed")
     if not Path(path).is_file() or Path(path).stat().st_size == 0:
         raise ExportError(f"{path}: STEP writer produced no file")
 
 
-def mesh(shape: TopoDS_Shape, linear_mm: float, angular_deg: float) -> None:
-    """Triangulate ``shape`` in place with an absolute linear deflection (mm)."""
-    BRepMesh_IncrementalMesh(shape, linear_mm, False, math.radians(angular_deg), True)
+STL_HEADER = b"geomgen binary STL, units mm".ljust(80, b" ")
+
+
+def stl_bytes(vertices: np.ndarray, faces: np.ndarray) -> bytes:
+    """Binary STL of a mesh (mm). Fixed header, no time stamp: same mesh, same bytes."""
+    tri = vertices[faces].astype(np.float64)
+    n = np.cross(tri[:, 1] - tri[:, 0], tri[:, 2] - tri[:, 0])
+    ln = np.linalg.norm(n, axis=1, keepdims=True)
+    n = np.divide(n, ln, out=np.zeros_like(n), where=ln > 0)
+    rec = np.zeros(len(faces), dtype=[("n", "<f4", 3), ("v", "<f4", (3, 3)), ("a", "<u2")])
+    rec["n"], rec["v"] = n, tri
+    return STL_HEADER + np.uint32(len(faces)).tobytes() + rec.tobytes()
 
 
 def write_stl(parts, path: Path, options: dict) -> None:
-    """Binary STL of all parts, deflection ``stl_tol`` mm and ``stl_angle`` deg."""
-    shape = parts[0][1] if len(parts) == 1 else _compound([s for _, s in parts])
-    mesh(shape, options.get("stl_tol", defaults.STL_LINEAR_TOL_MM),
-         options.get("stl_angle", defaults.STL_ANGULAR_TOL_DEG))
-    writer = StlAPI_Writer()
-    writer.ASCIIMode = False
-    if not writer.Write(shape, str(path)):
-        raise ExportError(f"{path}: STL writer failed")
+    """Binary STL of all parts with chordal deviation ``stl_tol`` mm."""
+    tol = options.get("stl_tol", defaults.STL_LINEAR_TOL_MM)
+    meshes = [p.mesh(tol) for p in parts]
+    offset, faces = 0, []
+    for v, f in meshes:
+        faces.append(f + offset)
+        offset += len(v)
+    data = stl_bytes(np.concatenate([v for v, _ in meshes]), np.concatenate(faces))
+    try:
+        Path(path).write_bytes(data)
+    except OSError as exc:
+        raise ExportError(f"{path}: cannot write STL: {exc.strerror or exc}") from None
 
 
 #: format name -> (file suffix, writer)
