@@ -8,7 +8,7 @@ from pathlib import Path
 import numpy as np
 
 from .. import defaults
-from ..errors import SpecError
+from ..errors import GeometryError, SpecError
 from ..sections import Section, naca
 from .planform import Planform, station_offsets
 from .surface import SurfaceModel
@@ -47,6 +47,46 @@ def _check_trailing_edge(model: SurfaceModel, where) -> list[str]:
         limit = defaults.TE_MAX_FRACTION_OF_RAMP_THICKNESS * t_start
         if te > limit:
             out.append((y, limit, t_start))
+    return out
+
+
+def _segments_cross(p: np.ndarray) -> bool:
+    """True if the closed 2D polygon ``p`` (n, 2) crosses itself (non-adjacent edges meet)."""
+    a, b = p, np.roll(p, -1, axis=0)
+    n = len(p)
+    d = b - a
+    # orientation tests for every edge pair at once (n is a few hundred)
+    def orient(p0, p1, q):
+        return np.sign((p1[:, None, 0] - p0[:, None, 0]) * (q[None, :, 1] - p0[:, None, 1])
+                       - (p1[:, None, 1] - p0[:, None, 1]) * (q[None, :, 0] - p0[:, None, 0]))
+    o1, o2 = orient(a, b, a), orient(a, b, b)
+    o3, o4 = o1.T, o2.T
+    hit = (o1 * o2 < 0) & (o3 * o4 < 0)
+    i, j = np.indices((n, n))
+    adjacent = (np.abs(i - j) <= 1) | (np.abs(i - j) == n - 1)
+    return bool((hit & ~adjacent).any())
+
+
+def check_geometry(model: SurfaceModel, where) -> list[str]:
+    """Geometry that cannot be made: chord <= 0 between stations, a section that crosses itself.
+
+    Sections lie in planes of constant span and the skin's span parameter is the span
+    position itself, so the skin crosses itself exactly where a cross-section does.
+    """
+    out = []
+    ys = np.linspace(model.planform.y[0], model.half_span, 801)
+    chords = model.planform("chord", ys)
+    if (chords <= 0).any():
+        y = float(ys[np.argmin(chords)])
+        out.append(f'surface "{model.name}": the smooth chord curve through the stations drops to '
+                   f"{chords.min():.1f} mm at y = {y:.1f} mm; add a station there or use linear interpolation")
+        return out
+    for y in where:
+        loop = model.section(y).loop(48)
+        if _segments_cross(loop):
+            out.append(f'surface "{model.name}": the section at y = {y:.1f} mm crosses itself '
+                       "(upper and lower surfaces meet); check thickness, blend and trailing edge")
+            break
     return out
 
 
@@ -89,4 +129,11 @@ def build_models(spec, source: str | Path = "<spec>") -> list[SurfaceModel]:
         models.append(model)
     if problems:
         raise SpecError(problems)
+    faults = []
+    for model in models:
+        mids = [0.5 * (a + b) for seg in model.loft_y() for a, b in zip(seg[:-1], seg[1:])]
+        where = sorted({float(abs(v)) for seg in model.loft_y() for v in seg} | {abs(v) for v in mids})
+        faults += check_geometry(model, where)
+    if faults:
+        raise GeometryError("; ".join(faults) + "; nothing was written")
     return models

@@ -1,0 +1,70 @@
+"""Benchmark figures (printed, not asserted): demo build time per part and against loft
+resolution, and the start-up time of ``geomgen --help``.
+
+Run: ``make bench`` (or ``.venv/bin/python bench/bench.py``).
+"""
+
+from __future__ import annotations
+
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "specs" / "demo-foilset.toml"
+
+
+def median_time(fn, n=3):
+    ts = []
+    for _ in range(n):
+        t = time.perf_counter()
+        fn()
+        ts.append(time.perf_counter() - t)
+    return statistics.median(ts)
+
+
+def main():
+    help_t = median_time(lambda: subprocess.run([sys.executable, "-m", "geomgen.cli", "--help"],
+                                                capture_output=True, check=True))
+    print(f"geomgen --help (new process): {help_t:.2f} s  [target <= 0.5 s]")
+
+    t = time.perf_counter()
+    from geomgen.build import Part, build
+    from geomgen.cad import export  # noqa: F401  (kernel import counted here)
+    from geomgen.geometry import build_models
+    from geomgen.spec import load_spec, load_spec_text
+
+    print(f"import of library and kernel: {time.perf_counter() - t:.2f} s (once per process)")
+    with tempfile.TemporaryDirectory() as tmp:
+        total = median_time(lambda: build(DEMO, Path(tmp) / "o"))
+    print(f"demo build, all files (median of 3): {total:.2f} s  [target <= 5 s]")
+
+    print("\nper part (median of 3): loft solid | STEP | STL 0.05 mm")
+    for model in build_models(load_spec(DEMO)):
+        def loft():
+            Part(model).solid
+
+        p = Part(model)
+        p.solid
+        with tempfile.TemporaryDirectory() as tmp:
+            st = median_time(lambda: export.write_step([p], Path(tmp) / "a.step", {}))
+            sl = median_time(lambda: export.write_stl([p], Path(tmp) / "a.stl", {}))
+        print(f"  {model.name:<12} {median_time(loft):6.2f} s | {st:5.2f} s | {sl:5.2f} s")
+
+    print("\nfront wing against loft resolution (loft_sections per half span): loft + STEP")
+    text = DEMO.read_text()
+    for n in (12, 24, 48, 96):
+        spec = load_spec_text(text.replace("loft_sections = 28", f"loft_sections = {n}"))
+        wing = build_models(spec)[0]
+        with tempfile.TemporaryDirectory() as tmp:
+            def run():
+                p = Part(wing)
+                export.write_step([p], Path(tmp) / "w.step", {})
+            print(f"  {n:4d} sections: {median_time(run):6.2f} s")
+
+
+if __name__ == "__main__":
+    main()
