@@ -37,3 +37,8 @@ COORD_NOISE = 5e-5
 
 #: Closest two stations may be, mm (nearly coincident sections make sliver solids).
 MIN_STATION_GAP_MM = 0.5
+
+#: Rounded tip: default length beyond the last station, as a fraction of its chord, and
+#: the chord fraction left for the small flat end (a B-spline skin cannot close to a point).
+ROUND_TIP_LENGTH_OF_CHORD = 0.5
+ROUND_TIP_END_CHORD = 0.15

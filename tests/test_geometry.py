@@ -154,3 +154,16 @@ def test_skin_follows_intended_sections_between_loft_sections():
             got = sk.evaluate(np.linspace(0, 1, 2 * n + 1), [y])[:, 0, :]
             worst = max(worst, np.abs(got - m.section_loop(float(y), n)).max())
     assert worst < 0.005
+
+
+def test_round_tip_closes_in_a_quarter_ellipse():
+    """Round tip: beyond the last station the chord follows c_tip·cos θ at y = y_tip + r sin θ
+    down to 15 % of the tip chord; the trailing edge thins with it."""
+    m = model_of(wing_spec(te=0.5, extra='tip = "round"\ntip_length = 40.0',
+                           stations=[dict(y=0, chord=200), dict(y=400, chord=100)]))
+    end = 400 + 40 * np.sqrt(1 - 0.15**2)
+    assert m.half_span == pytest.approx(end)
+    assert float(m.chord(end)) == pytest.approx(15.0, rel=1e-9)
+    assert float(m.chord(400 + 40 * np.sin(np.pi / 6))) == pytest.approx(100 * np.cos(np.pi / 6), rel=1e-9)
+    p = m.section_loop(end)
+    assert np.linalg.norm(p[0] - p[-1]) == pytest.approx(0.5 * 0.15, abs=1e-9)

@@ -152,3 +152,16 @@ def test_volume_of_a_straight_tapered_wing_against_the_closed_form(tmp_path, wri
     (_, solid), = step_solids(res.files[0])
     exact = 0.68088 * 0.12 * 400 * (200**2 + 200 * 100 + 100**2) / 3
     assert volume_mm3(solid) == pytest.approx(exact, rel=1e-3)
+
+
+def test_round_tip_gives_a_valid_watertight_part(tmp_path, write_spec):
+    from geomgen.cad.loft import check_solid, volume_mm3
+
+    p = write_spec(wing_spec(te=0.5, extra='tip = "round"', section='naca = "2412"',
+                             stations=[dict(y=0, chord=200), dict(y=400, chord=100, x=30, z=-20)]))
+    res = build(p, tmp_path / "o")
+    (_, solid), = step_solids(res.files[0])
+    assert check_solid(solid) == []
+    assert volume_mm3(solid) / 1000 == pytest.approx(res.parts[0].figures.volume_cm3, rel=1e-3)
+    mesh = trimesh.load(res.files[1], force="mesh")
+    assert mesh.is_watertight

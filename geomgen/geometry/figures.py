@@ -43,7 +43,8 @@ def _nodes(model) -> tuple[np.ndarray, np.ndarray]:
     """Gauss-Legendre nodes and weights over the half span, one block per station interval."""
     xg, wg = np.polynomial.legendre.leggauss(GAUSS_NODES)
     ys, ws = [], []
-    for a, b in zip(model.planform.y[:-1], model.planform.y[1:]):
+    br = model.station_breaks
+    for a, b in zip(br[:-1], br[1:]):
         ys.append(0.5 * (b - a) * xg + 0.5 * (a + b))
         ws.append(0.5 * (b - a) * wg)
     return np.concatenate(ys), np.concatenate(ws)
@@ -67,11 +68,11 @@ def intended_figures(model) -> Figures:
     half = model.half_span - (0.0 if model.mirror else float(model.planform.y[0]))
     span = k * half
     area = k * area_half
-    vol = k * float(w @ np.array([model.section(v).area() * float(model.planform("chord", v)) ** 2 for v in y]))
-    y0, y1 = float(model.planform.y[0]), model.half_span
+    vol = k * float(w @ np.array([model.section(v).area() * float(model.chord(v)) ** 2 for v in y]))
+    y0, y1 = float(model.planform.y[0]), float(model.planform.half_span)  # sweep: root to last station
     (le0, c0), (le1, c1) = outline_at(model, y0), outline_at(model, y1)
     sweep = math.degrees(math.atan2((le1 + c1 / 4) - (le0 + c0 / 4), y1 - y0))
-    root, tip = float(model.planform("chord", y0)), float(model.planform("chord", y1))
+    root, tip = float(model.chord(y0)), float(model.planform("chord", model.planform.half_span))
     return Figures(span_mm=span, projected_area_cm2=area / 100.0, aspect_ratio=span**2 / area, mac_mm=mac,
                    mac_y_mm=y_mac, mac_le_x_mm=x_le, mac_qc_x_mm=x_le + mac / 4, root_chord_mm=root,
                    tip_chord_mm=tip, taper_ratio=tip / root, sweep_qc_deg=sweep, volume_cm3=vol / 1000.0)

@@ -42,10 +42,10 @@ def _check_trailing_edge(model: SurfaceModel, where) -> list[str]:
     if te == 0:
         return out
     for y in where:
-        chord = float(model.planform("chord", y))
+        chord = float(model.chord(y))
         t_start = float(model.base_section(y).thickness_at([defaults.TE_RAMP_START])[0]) * chord
         limit = defaults.TE_MAX_FRACTION_OF_RAMP_THICKNESS * t_start
-        if te > limit:
+        if te * float(model.tip_factor(y)) > limit:
             out.append((y, limit, t_start))
     return out
 
@@ -75,7 +75,7 @@ def check_geometry(model: SurfaceModel, where) -> list[str]:
     """
     out = []
     ys = np.linspace(model.planform.y[0], model.half_span, 801)
-    chords = model.planform("chord", ys)
+    chords = model.chord(ys)
     if (chords <= 0).any():
         y = float(ys[np.argmin(chords)])
         out.append(f'surface "{model.name}": the smooth chord curve through the stations drops to '

@@ -61,12 +61,37 @@ class SurfaceModel:
         self.R = ORIENTATION[spec.orientation] @ rot_y(spec.incidence)
         self.position = np.asarray(spec.position, float)
         self._section_at = lru_cache(maxsize=512)(self._section_uncached)
+        last = planform.half_span
+        self.tip_length = 0.0
+        if spec.tip == "round":
+            self.tip_length = spec.tip_length or defaults.ROUND_TIP_LENGTH_OF_CHORD * float(planform("chord", last))
+        self._theta_max = math.acos(defaults.ROUND_TIP_END_CHORD)
+
+    # -- rounded tip ----------------------------------------------------------------
+    def tip_factor(self, y) -> np.ndarray:
+        """Chord factor of the rounded tip: a quarter ellipse beyond the last station (1 inside)."""
+        q = np.abs(np.asarray(y, float)) - self.planform.half_span
+        if self.tip_length == 0.0:
+            return np.ones_like(q)
+        t = np.clip(q / self.tip_length, 0.0, 1.0)
+        return np.sqrt(1.0 - t**2)
+
+    def chord(self, y) -> np.ndarray:
+        """Chord at span ``y`` (mm), the rounded tip included."""
+        return self.planform("chord", y) * self.tip_factor(y)
+
+    @property
+    def station_breaks(self) -> list[float]:
+        """Half-span positions where the planform may change slope: stations and tip start."""
+        ys = [float(v) for v in self.planform.y]
+        return ys + ([self.half_span] if self.tip_length else [])
 
     # -- span ---------------------------------------------------------------------
     @property
     def half_span(self) -> float:
-        """Root-to-tip length of the stations, mm."""
-        return self.planform.half_span
+        """Root-to-tip length of the part's half, mm (the rounded tip included)."""
+        return self.planform.half_span + self.tip_length * math.sin(self._theta_max) if self.tip_length else \
+            self.planform.half_span
 
     @property
     def y_range(self) -> tuple[float, float]:
@@ -96,8 +121,9 @@ class SurfaceModel:
         return sec
 
     def _section_uncached(self, y: float) -> Section:
-        chord = float(self.planform("chord", y))
-        return self.base_section(y).with_te_thickness(self.spec.te_thickness / chord)
+        chord = float(self.chord(y))
+        te = self.spec.te_thickness * float(self.tip_factor(y))  # the edge thins into a rounded tip
+        return self.base_section(y).with_te_thickness(te / chord)
 
     def section(self, y: float) -> Section:
         """Finished unit-chord section at span ``y`` (trailing edge of te_thickness mm)."""
@@ -107,7 +133,8 @@ class SurfaceModel:
     def place(self, y: float, pts2d: np.ndarray) -> np.ndarray:
         """Unit-chord section points (n, 2) at span ``y`` -> (n, 3) datum points, mm."""
         pf = self.planform
-        c, xr, zr, tw = (float(pf(k, y)) for k in ("chord", "x", "z", "twist"))
+        xr, zr, tw = (float(pf(k, y)) for k in ("x", "z", "twist"))
+        c = float(self.chord(y))
         ref = self.spec.reference
         d = np.column_stack([(pts2d[:, 0] - ref) * c, np.zeros(len(pts2d)), pts2d[:, 1] * c])
         local = d @ rot_y(tw).T + np.array([xr, y, zr])
@@ -129,9 +156,9 @@ class SurfaceModel:
     def loft_breaks(self) -> list[float]:
         """Span positions where the skin may have a crease (C0): the centreline of a
         mirrored part and, for linear interpolation, every station."""
-        ys = list(self.planform.y)
-        inner = ys[1:-1] if self.spec.interpolation == "linear" else []
-        half = [ys[0]] + inner + [ys[-1]]
+        ys = self.station_breaks
+        inner = [float(v) for v in self.planform.y[1:-1]] if self.spec.interpolation == "linear" else []
+        half = [ys[0]] + inner + ([float(self.planform.y[-1])] if self.tip_length else []) + [self.half_span]
         if self.mirror:
             return [-v for v in half[::-1] if v > 0] + half
         return half
@@ -147,7 +174,14 @@ class SurfaceModel:
         n_half = self.spec.loft_sections
         breaks = self.loft_breaks()
         segs = []
+        last = float(self.planform.y[-1])
         for a, c in zip(breaks[:-1], breaks[1:]):
+            if self.tip_length and min(abs(a), abs(c)) >= last - 1e-9:  # rounded tip: even in the ellipse angle
+                th = np.linspace(0.0, self._theta_max, max(defaults.LOFT_SECTIONS_PER_INTERVAL_MIN + 3, n_half // 3))
+                y = last + self.tip_length * np.sin(th)
+                y[-1] = self.half_span
+                segs.append(y if c > 0 else -y[::-1])
+                continue
             # map |y| through theta = asin(|y|/b) so spacing is uniform in theta
             ta, tc = (math.asin(np.clip(v / b, -1, 1)) for v in (a, c))
             n = max(defaults.LOFT_SECTIONS_PER_INTERVAL_MIN,

@@ -151,7 +151,13 @@ class SurfaceSpec(_Strict):
         "linear", description="between stations: linear, or smooth (shape-preserving cubic)")
     loft_sections: int = Field(defaults.LOFT_SECTIONS, ge=4, le=400,
                                description="loft sections per half span (more: closer to a curved planform)")
-    tip: Literal["flat", "round"] = Field("flat", description="tip closure")
+    tip: Literal["flat", "round"] = Field(
+        "flat", description="flat: a flat cap at the last station; round: the planform closes beyond the last "
+                            "station in a quarter ellipse (chord and thickness shrink, trailing edge thins) "
+                            "to a small flat end")
+    tip_length: Optional[float] = Field(None, gt=0.0, le=2000.0,
+                                        description="round tip: length beyond the last station, mm "
+                                                    "(default half the last chord)")
     station: list[StationSpec] = Field(min_length=2, description="spanwise stations, root first")
     expect: Optional[Expect] = None
 
