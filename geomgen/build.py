@@ -41,8 +41,9 @@ class Part:
 
     def mesh(self, tol: float = defaults.STL_LINEAR_TOL_MM):
         """(vertices (n, 3) mm, faces (m, 3)) of the same skin, chordal deviation ``tol`` mm."""
-        v0 = np.concatenate(self.model.loft_y())
-        return tessellate(self.skin, self.model.spec.te_thickness > 0, Section.loop_parameter(), v0, tol)
+        # start coarse (creases included) and let the chordal test refine where needed
+        v0 = np.concatenate([seg[::3] for seg in self.model.loft_y()] + [self.model.loft_breaks()])
+        return tessellate(self.skin, self.model.spec.te_thickness > 0, Section.loop_parameter(10), v0, tol)
 
 
 @dataclass
