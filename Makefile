@@ -24,3 +24,4 @@ test-fast: $(STAMP)
 
 bench: $(STAMP)
 	$(BIN)/python bench/bench.py
+	$(BIN)/python bench/bench_hydro.py

@@ -89,6 +89,27 @@ def format_build_summary(res) -> str:
 
 
 @main.command()
+@click.argument("spec", type=click.Path(dir_okay=False))
+@click.option("--cg", "cg_x", type=float, default=None,
+              help="datum x of the centre of gravity, mm (gives the static margin)")
+@click.option("--sideslip", is_flag=True, help="also put masts and fins in the lattice (side force)")
+@click.option("--json", "as_json", is_flag=True, help="machine-readable output")
+def balance(spec, cg_x, sideslip, as_json):
+    """Neutral point, lift split and trim of the foil set in SPEC (vortex-lattice method).
+
+    Trims at the speeds of the spec's [flight] table: front wing and stabilizer lift, the
+    net centre of pressure and where the weight must act, relative to the mast.
+    """
+    import json
+
+    from .hydro import analyse_spec, format_hydro
+    from .spec import load_spec
+
+    res = _run(lambda: analyse_spec(load_spec(spec), cg_x_mm=cg_x, include_vertical=sideslip or None))
+    click.echo(json.dumps(res.as_dict(), indent=2) if as_json else format_hydro(res))
+
+
+@main.command()
 def schema():
     """Print the JSON Schema of the spec (for editors)."""
     import json

@@ -7,7 +7,7 @@ format = 1
 name = "starter"                       # used in output file names
 
 [datum]
-origin = "front face of the mast top, on the fuselage centreline"
+origin = "where the mast's leading edge meets the top of the fuselage, on the centreline"
 
 # Named sections, used by stations. A NACA 4- or 5-digit designation, or file = "x.dat"
 # (a coordinate file next to this spec). Options: thickness_pct, invert, closed_te.
@@ -23,7 +23,7 @@ invert = true                          # a stabilizer's pressure side is on top
 name = "front-wing"
 role = "wing"                          # wing | stabilizer | mast | fin
 mirror = true                          # stations describe the starboard half
-position = [-120.0, 0.0, -40.0]        # datum position of the root reference point
+position = [-220.0, 0.0, -30.0]        # datum position of the root reference point
 reference = 0.25                       # twist axis at the quarter chord
 incidence = 1.0
 te_thickness = 0.6                     # finished trailing edge, mm (0 = sharp)
@@ -50,7 +50,7 @@ section = "wing-tip"
 name = "stabilizer"
 role = "stabilizer"
 mirror = true
-position = [560.0, 0.0, -40.0]
+position = [420.0, 0.0, -25.0]
 incidence = -2.0
 te_thickness = 0.5
 [[surface.station]]
@@ -67,17 +67,24 @@ section = "stab"
 name = "mast"
 role = "mast"
 orientation = "vertical-up"            # span runs up +z from the root reference point
-position = [20.0, 0.0, -700.0]
+position = [0.0, 0.0, 0.0]             # mast leading edge on the fuselage
+reference = 0.0
 te_thickness = 0.6
 [[surface.station]]
 y = 0.0
 chord = 120.0
 section = "mast"
 [[surface.station]]
-y = 660.0
+y = 700.0
 chord = 120.0
 section = "mast"
 
 [sections.mast]
 naca = "0013"
+
+# What the balance command needs: total mass on the foil, speeds, water.
+[flight]
+mass_kg = 80.0
+speeds_kmh = [15.0, 20.0, 25.0]
+fluid = "seawater"
 '''

@@ -1,0 +1,66 @@
+"""Time the vortex-lattice neutral point of the demo set against panel count.
+
+Usage: ``.venv/bin/python bench/bench_hydro.py [SPEC]`` (default specs/demo-foilset.toml, else
+/tmp/foil.toml). Prints, per panel count, the lattice size, the wall time of
+:func:`geomgen.hydro.neutral_point` (best of 3, lattice built and solved each time), of a full
+:func:`geomgen.hydro.analyse` with trim, and the neutral point with its change from the finest
+count in % MAC. OpenBLAS threads matter on a shared 2-core machine: try
+``OPENBLAS_NUM_THREADS=1`` as well (the thread count in effect is printed).
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+import time
+from pathlib import Path
+
+from geomgen.geometry.model import build_models
+from geomgen.hydro import analyse, neutral_point
+from geomgen.hydro.analysis import figures_of
+from geomgen.spec import load_spec
+from geomgen.spec.flight import DEFAULT_CHORD_PANELS, DEFAULT_SPAN_PANELS
+
+ROOT = Path(__file__).resolve().parents[1]
+COUNTS = [(8, 4), (12, 4), (DEFAULT_SPAN_PANELS, DEFAULT_CHORD_PANELS), (24, 8), (32, 12), (48, 16)]
+
+
+def best_of(fn, n: int = 3) -> float:
+    times = []
+    for _ in range(n):
+        t = time.perf_counter()
+        fn()
+        times.append(time.perf_counter() - t)
+    return min(times)
+
+
+def main(argv: list[str]) -> int:
+    spec_path = Path(argv[1]) if len(argv) > 1 else ROOT / "specs" / "demo-foilset.toml"
+    if not spec_path.exists():
+        spec_path = Path("/tmp/foil.toml")
+    spec = load_spec(spec_path)
+    models = build_models(spec)
+    wing = next(m for m in models if m.role == "wing")
+    t0 = time.perf_counter()
+    mac = figures_of(wing).mac_mm
+    t_fig = time.perf_counter() - t0
+    print(f"spec: {spec_path}")
+    print(f"OPENBLAS_NUM_THREADS={os.environ.get('OPENBLAS_NUM_THREADS', '(unset)')}, cpus={os.cpu_count()}")
+    print(f"front-wing reference figures (first call, cached after): {t_fig * 1000:.0f} ms\n")
+    rows = []
+    for ns, nc in COUNTS:
+        x = neutral_point(models, ns, nc)
+        t_np = best_of(lambda: neutral_point(models, ns, nc), 3 if ns * nc < 400 else 1)
+        t_full = best_of(lambda: analyse(models, spec.flight, span_panels=ns, chord_panels=nc), 1)
+        n = sum((2 * ns if m.mirror else ns) * nc for m in models if m.role in ("wing", "stabilizer"))
+        rows.append((ns, nc, n, t_np, t_full, x))
+    x_ref = rows[-1][-1]
+    print(f"{'strips/half':>11} {'chord':>5} {'panels':>6} {'NP s':>7} {'analyse s':>9} {'NP x mm':>9} {'vs finest %MAC':>14}")
+    for ns, nc, n, t_np, t_full, x in rows:
+        mark = "  <- default" if (ns, nc) == (DEFAULT_SPAN_PANELS, DEFAULT_CHORD_PANELS) else ""
+        print(f"{ns:>11} {nc:>5} {n:>6} {t_np:>7.3f} {t_full:>9.3f} {x:>9.2f} {(x - x_ref) / mac * 100:>14.3f}{mark}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main(sys.argv))

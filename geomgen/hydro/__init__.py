@@ -1,0 +1,12 @@
+"""Hydrodynamics of a foil set: vortex-lattice method, neutral point and trim.
+
+Pure numpy/scipy (no CAD kernel). Entry points: :func:`analyse` and :func:`format_hydro`.
+"""
+
+from .analysis import analyse, analyse_spec, neutral_point
+from .report import format_hydro
+from .results import HydroResult, Lateral, Loading, SurfaceHydro, Takeoff, TrimPoint
+from .water import G, ITTC_2011, Water, water
+
+__all__ = ["analyse", "analyse_spec", "neutral_point", "format_hydro", "HydroResult", "SurfaceHydro", "TrimPoint", "Takeoff", "Lateral",
+           "Loading", "Water", "water", "G", "ITTC_2011"]

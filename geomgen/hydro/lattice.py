@@ -1,0 +1,195 @@
+"""The vortex lattice: horseshoe vortices laid on the mean camber surfaces of the surfaces.
+
+Vortex-lattice method as described in Katz & Plotkin, *Low-Speed Aerodynamics*, and
+Bertin & Cummings, *Aerodynamics for Engineers*: each panel carries a horseshoe
+vortex whose bound leg lies on the panel's quarter-chord line and whose trailing legs run
+to +x infinity (the free-stream direction at zero attitude); the flow-tangency condition
+is met at the panel's three-quarter-chord point, with the normal taken from the camber
+surface there.
+
+Points come from :meth:`SurfaceModel.camber_points`, the same geometry model the CAD uses,
+so incidence, twist, sweep, dihedral/anhedral, curved planforms and mirrored halves are
+represented as built. Spanwise spacing is cosine (strip edges at y(θ_j), θ_j = jπ/n, so
+strips crowd at the tips and, on a mirrored part, the centreline is a strip edge) and each
+strip's collocation station is at the angle midway, y(θ_j + π/2n), not at the arithmetic
+midpoint: with this choice the lift slope of a rectangular wing is converged to 4 digits
+with 10 strips per half span, where arithmetic midpoints converged only as 1/n (measured
+here; the same pairing of vortex and control stations as Multhopp's lifting-line
+quadrature). Chordwise spacing is uniform (the quarter/three-quarter rule is exact for a
+flat or parabolic mean line on uniform panels).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+#: Chord-fraction step of the finite difference for the camber-surface tangent.
+TANGENT_STEP = 1e-3
+
+
+@dataclass
+class Lattice:
+    """Panels of one or more surfaces, flattened in order surface -> strip -> chordwise row.
+
+    Lengths mm. ``N`` panels, ``S`` strips.
+
+    Attributes
+    ----------
+    A, B : (N, 3)
+        Ends of the bound vortex (quarter-chord line of the panel); trailing legs start here.
+    colloc : (N, 3)
+        Collocation points (three-quarter chord of the panel, mid-strip).
+    normal : (N, 3)
+        Unit normals of the camber surface at the collocation points (toward the upper side).
+    surface : (N,) int
+        Index of the surface (into ``models``) of each panel.
+    strip : (N,) int
+        Index of the strip (into the strip arrays) of each panel.
+    width : (N,) float
+        Width of the panel's strip projected on the y-z plane, mm.
+    strip_y : (S,) float
+        Signed span coordinate of each strip's collocation station, mm (the surface's own Y).
+    strip_chord : (S,) float
+        Local chord at the collocation station, mm.
+    strip_surface : (S,) int
+    models : list
+        The :class:`SurfaceModel` objects, in surface-index order.
+    chord_panels : list of int
+        Panels along the chord, per surface.
+    span_panels : list of int
+        Strips across the whole part (both halves of a mirrored part), per surface.
+    """
+
+    A: np.ndarray
+    B: np.ndarray
+    colloc: np.ndarray
+    normal: np.ndarray
+    surface: np.ndarray
+    strip: np.ndarray
+    width: np.ndarray
+    strip_y: np.ndarray
+    strip_chord: np.ndarray
+    strip_surface: np.ndarray
+    models: list
+    chord_panels: list
+    span_panels: list
+
+    t_mid: np.ndarray = None
+    """(N,) fraction along A–B of the collocation station."""
+    core: np.ndarray = None
+    """(N,) core radius the panel's vortices show to other surfaces, mm (see ``vortex``)."""
+
+    @property
+    def n(self) -> int:
+        """Number of panels."""
+        return len(self.A)
+
+    @property
+    def mid(self) -> np.ndarray:
+        """(N, 3) force points on the bound vortices at the collocation station, mm.
+
+        The point of A–B at the strip's collocation station (θ midway), where forces act and
+        where the Trefftz-plane wash is taken; with cosine spacing the arithmetic midpoint
+        gave a span efficiency that crept down to 1 only as 1/n.
+        """
+        return self.A + self.t_mid[:, None] * (self.B - self.A)
+
+    def mask(self, index: int) -> np.ndarray:
+        """(N,) bool, panels of surface ``index``."""
+        return self.surface == index
+
+
+def _cosine(model, n_half: int, theta_shift: float = 0.0) -> np.ndarray:
+    """(n + 1,) span coordinates y(θ), θ = (j + theta_shift)π/n, j = 0..n, mm."""
+    lo, hi = model.y_range
+    n = 2 * n_half if model.mirror else n_half
+    theta = (np.arange(n + 1) + theta_shift) * np.pi / n
+    return lo + (hi - lo) * 0.5 * (1.0 - np.cos(theta))
+
+
+def span_stations(model, n_half: int) -> np.ndarray:
+    """Strip edges along the span with cosine spacing, mm.
+
+    Parameters
+    ----------
+    model : SurfaceModel
+    n_half : int
+        Strips per half span (mirrored part) or over the whole part (single-sided).
+
+    Returns
+    -------
+    (n + 1,) signed span coordinates, increasing; a mirrored part gets ``2 * n_half``
+    strips with an edge on the centreline.
+    """
+    lo, hi = model.y_range
+    y = _cosine(model, n_half)
+    y[0], y[-1] = lo, hi
+    if model.mirror:
+        y[n_half] = 0.0
+    return y
+
+
+def surface_panels(model, n_span: int, n_chord: int) -> dict:
+    """Panel geometry of one surface (see :class:`Lattice` for the fields), mm."""
+    ye = span_stations(model, n_span)
+    ym = _cosine(model, n_span, 0.5)[:-1]
+    edges = np.linspace(0.0, 1.0, n_chord + 1)
+    dx = edges[1] - edges[0]
+    xb = edges[:-1] + 0.25 * dx
+    xcol = edges[:-1] + 0.75 * dx
+    h = min(TANGENT_STEP, 0.2 * dx)
+    m = n_chord
+    at_edges = np.array([model.camber_points(y, np.concatenate([xb, xcol])) for y in ye])  # (S+1, 2m, 3)
+    at_mid = np.array([model.camber_points(y, np.concatenate([xcol, xcol - h, xcol + h])) for y in ym])
+    bound, col_e = at_edges[:, :m], at_edges[:, m:]
+    col, cm, cp = at_mid[:, :m], at_mid[:, m:2 * m], at_mid[:, 2 * m:]
+    t_span = col_e[1:] - col_e[:-1]                 # (S, m, 3)
+    t_chord = cp - cm
+    nrm = np.cross(t_chord, t_span)
+    nrm /= np.linalg.norm(nrm, axis=-1, keepdims=True)
+    A, B = bound[:-1], bound[1:]
+    s = len(ym)
+    width = np.linalg.norm((B - A)[..., 1:], axis=-1).mean(axis=1)   # projected on the y-z plane
+    return dict(A=A.reshape(-1, 3), B=B.reshape(-1, 3), colloc=col.reshape(-1, 3),
+                normal=nrm.reshape(-1, 3), strip=np.repeat(np.arange(s), m),
+                width=np.repeat(width, m), strip_y=ym,
+                t_mid=np.repeat((ym - ye[:-1]) / (ye[1:] - ye[:-1]), m),
+                strip_chord=np.asarray(model.planform("chord", ym), float), n_strips=s)
+
+
+def build_lattice(models, span_panels: int, chord_panels: int) -> Lattice:
+    """Lattice of all ``models`` together.
+
+    Parameters
+    ----------
+    models : list of SurfaceModel
+    span_panels : int
+        Strips per half span of a mirrored part; a single-sided part gets as many over its
+        whole span.
+    chord_panels : int
+        Panels along the chord.
+
+    Returns
+    -------
+    Lattice
+    """
+    if span_panels < 2 or chord_panels < 1:
+        raise ValueError("need span_panels >= 2 and chord_panels >= 1")
+    parts = [surface_panels(m, span_panels, chord_panels) for m in models]
+    off = np.cumsum([0] + [p["n_strips"] for p in parts])
+    cat = lambda k: np.concatenate([p[k] for p in parts])  # noqa: E731
+    lat = Lattice(
+        A=cat("A"), B=cat("B"), colloc=cat("colloc"), normal=cat("normal"),
+        surface=np.concatenate([np.full(len(p["A"]), i) for i, p in enumerate(parts)]),
+        strip=np.concatenate([p["strip"] + off[i] for i, p in enumerate(parts)]),
+        width=cat("width"), strip_y=cat("strip_y"), strip_chord=cat("strip_chord"),
+        strip_surface=np.concatenate([np.full(p["n_strips"], i) for i, p in enumerate(parts)]),
+        models=list(models), chord_panels=[chord_panels] * len(models),
+        span_panels=[p["n_strips"] for p in parts])
+    from .vortex import cross_core
+
+    lat.t_mid = cat("t_mid")
+    lat.core = cross_core(lat)
+    return lat

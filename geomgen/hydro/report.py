@@ -1,0 +1,115 @@
+"""Plain-text report of a :class:`HydroResult`: aligned tables with units, and the caution."""
+
+from __future__ import annotations
+
+import math
+import textwrap
+
+from .water import G
+
+
+def _f(v, fmt: str) -> str:
+    """Format a number, '—' for None/nan."""
+    if v is None or (isinstance(v, float) and not math.isfinite(v)):
+        return "—"
+    return format(v, fmt)
+
+
+def table(headers: list[str], rows: list[list[str]], left: int = 1) -> list[str]:
+    """Aligned table: the first ``left`` columns left-aligned, the rest right-aligned."""
+    widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h) for i, h in enumerate(headers)]
+
+    def line(cells):
+        return "  ".join(c.ljust(w) if i < left else c.rjust(w) for i, (c, w) in enumerate(zip(cells, widths)))
+
+    return [line(headers), line(["-" * w for w in widths])] + [line(r) for r in rows]
+
+
+def format_hydro(r) -> str:
+    """Text report of the hydrodynamic analysis.
+
+    Parameters
+    ----------
+    r : HydroResult
+
+    Returns
+    -------
+    str
+        Lines for a terminal: reference, per-surface table, set figures, neutral point,
+        trim table (if trimmed), takeoff estimate, sideslip (if computed), notes, caution.
+    """
+    ref, p = r.reference, r.panels
+    out = [f"Hydrodynamics: vortex-lattice method, {p['total']} panels "
+           f"({p['span_panels_per_half']} strips per half span, {p['chord_panels']} along the chord)",
+           f"Reference: front wing '{ref['wing']}', S = {ref['area_cm2']:.1f} cm², "
+           f"MAC = {ref['mac_mm']:.1f} mm, span = {ref['span_mm']:.1f} mm"]
+    if ref["mast_x_mm"] is not None:
+        out.append(f"Mast reference: '{ref['mast']}' {ref['mast_reference']}, x = {ref['mast_x_mm']:.1f} mm")
+    mp = ref["moment_point_mm"]
+    out += [f"Datum x aft, z up; moments about x = {mp[0]:.1f} mm, z = {mp[2]:.1f} mm, positive nose up",
+            f"Reference attitude {r.alpha_ref_deg:.2f}° (free stream to the datum x axis)", ""]
+    rows = [[s.name, s.role, _f(s.area_cm2, ".1f"), _f(s.aspect_ratio, ".2f"), _f(s.cl, ".4f"),
+             _f(s.lift_slope_per_rad, ".3f"), _f(s.lift_slope_per_deg, ".4f"), _f(s.lift_slope_alone_per_rad, ".3f"),
+             _f(s.zero_lift_attitude_deg, ".2f"), _f(s.ac_x_mm, ".1f"), _f(s.ac_pct_mac, ".1f"),
+             _f(s.cm_ac, ".4f"), _f(s.cdi, ".5f"), _f(s.span_efficiency, ".3f")] for s in r.surfaces]
+    out += table(["surface", "role", "area cm²", "AR", "CL", "CLα /rad", "CLα /deg", "alone /rad",
+                  "zero-lift °", "ac x mm", "ac % MAC", "Cm ac", "CDi", "e alone"], rows, left=2)
+    out += ["", "CLα in the set includes the downwash; 'alone' is the surface by itself. "
+                "Surface coefficients on its own area and MAC.", ""]
+    out.append(f"Set: CL {r.cl:.4f}, CLα {r.lift_slope_per_rad:.3f} /rad ({r.lift_slope_per_deg:.4f} /deg), "
+               f"zero-lift attitude {_f(r.zero_lift_attitude_deg, '.2f')}°, Cm {r.cm:.4f}, "
+               f"Cmα {r.cm_alpha_per_rad:.3f} /rad ({r.cm_alpha_per_deg:.5f} /deg), CDi {r.cdi:.5f}, "
+               f"e {_f(r.span_efficiency, '.3f')}")
+    np_line = (f"Neutral point: x = {r.neutral_point_x_mm:.1f} mm, {r.neutral_point_pct_mac:.1f} % MAC "
+               f"from the front wing's MAC leading edge")
+    if r.neutral_point_from_mast_mm is not None:
+        d = r.neutral_point_from_mast_mm
+        np_line += (f"; {abs(d):.1f} mm {'aft of' if d >= 0 else 'ahead of'} the mast reference "
+                    f"({r.neutral_point_from_mast_pct_mac:+.1f} % MAC)")
+    out.append(np_line)
+    if r.downwash_gradient is not None:
+        out.append(f"Downwash gradient at the stabilizer (1 − CLα in set / CLα alone): {r.downwash_gradient:.3f}")
+    if r.static_margin_pct is not None:
+        out.append(f"Static margin with the weight at x = {r.cg_x_mm:.1f} mm: {r.static_margin_pct:+.1f} % MAC "
+                   f"({'stable' if r.static_margin_pct > 0 else 'unstable'} in pitch)")
+    if r.trim:
+        w = r.water
+        out += ["", f"Trim, lift = weight: {r.mass_kg:g} kg ({r.mass_kg * G:.0f} N), {w['name']} "
+                    f"ρ = {w['density']:g} kg/m³, ν = {w['viscosity']:.4g} m²/s ({w['source']})"]
+        names = [s.name for s in r.surfaces]
+        heads = ["km/h", "m/s", "attitude °"] + [f"{n} N (kgf)" for n in names] + \
+                ["cp x mm", "cp to mast mm", "M mast N·m", "Di N"] + [f"Re {n}" for n in names]
+        if r.cg_x_mm is not None:
+            heads.insert(heads.index("Di N"), "M weight N·m")
+        rows = []
+        for t in r.trim:
+            row = [_f(t.speed_kmh, ".1f"), _f(t.speed_ms, ".2f"), _f(t.attitude_deg, ".2f")]
+            row += [f"{_f(t.lift_n.get(n), '.0f')} ({_f(t.lift_kgf.get(n), '.1f')})" for n in names]
+            row += [_f(t.cp_x_mm, ".1f"), _f(t.cp_from_mast_mm, "+.1f"), _f(t.moment_about_mast_nm, "+.1f")]
+            if r.cg_x_mm is not None:
+                row.append(_f(t.moment_about_weight_nm, "+.1f"))
+            row += [_f(t.induced_drag_n, ".1f")] + [_f(t.reynolds.get(n), ".3g") for n in names]
+            if t.below_takeoff_speed:
+                row[0] += "*"
+            rows.append(row)
+        out += table(heads, rows, left=0)
+        out.append("cp: where the weight must act for balance (negative 'to mast': ahead of it). "
+                   "Lift is negative when a surface pushes down.")
+        if any(t.below_takeoff_speed for t in r.trim):
+            out.append("* below the estimated takeoff speed: the lattice has no stall, so this row is not reachable.")
+        if any(not math.isfinite(t.attitude_deg) for t in r.trim):
+            out.append("— no trim between -28° and +34° attitude at that speed.")
+    if r.takeoff is not None:
+        to = r.takeoff
+        out.append(f"Estimated takeoff: {_f(to.speed_kmh, '.1f')} km/h ({_f(to.speed_ms, '.2f')} m/s) at attitude "
+                   f"{_f(to.attitude_deg, '.1f')}°, where the front wing's section cl first reaches {to.cl_max:g} "
+                   f"(at |y| = {_f(to.limiting_y_mm, '.0f')} mm)")
+    if r.lateral is not None:
+        la = r.lateral
+        out += ["", f"Sideslip (masts and fins in the lattice): CYβ {la.side_force_per_deg:.5f} /deg, "
+                    f"Clβ {la.roll_moment_per_deg:.5f} /deg, Cnβ {la.yaw_moment_per_deg:.5f} /deg "
+                    "(right-hand about datum x and z, front-wing S and span)"]
+        out += ["  " + ", ".join(f"{k} {v:.5f}" for k, v in la.side_force_slope_per_deg.items()) + " (CYβ share /deg)"]
+    out += [""] + [f"Note: {n}" for n in r.notes]
+    out += [""] + textwrap.wrap("CAUTION: " + r.caution, 100)
+    return "\n".join(out)
