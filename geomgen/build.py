@@ -29,9 +29,9 @@ class Part:
     def name(self) -> str:
         return self.model.name
 
-    @cached_property
+    @property
     def skin(self) -> Skin:
-        return build_skin(self.model)
+        return self.model.skin
 
     @cached_property
     def solid(self):
@@ -61,6 +61,23 @@ class BuildResult:
     parts: list[PartResult]
     files: list[Path]
     seconds: float
+
+
+def build_info(spec_path, stl_tol: float) -> dict:
+    """What makes outputs fresh: the spec's bytes and the mesh tolerance (and the version)."""
+    from .outputs import spec_digest
+
+    return {"spec": Path(spec_path).name, "spec_sha256": spec_digest(spec_path), "stl_tol_mm": stl_tol}
+
+
+def output_names(spec_name: str, part_names, formats=("step", "stl"), assembly: bool = True) -> list[str]:
+    """File names a build writes."""
+    from .cad.export import EXPORTERS
+
+    names = [f"{spec_name}-{p}{EXPORTERS[f][0]}" for p in part_names for f in formats]
+    if assembly and "step" in formats and len(part_names) > 1:
+        names.append(f"{spec_name}-assembly.step")
+    return names
 
 
 def build(spec_path, out_dir, *, formats=("step", "stl"), stl_tol: float = defaults.STL_LINEAR_TOL_MM,
@@ -94,6 +111,5 @@ def build(spec_path, out_dir, *, formats=("step", "stl"), stl_tol: float = defau
             fname = f"{spec.name}-assembly.step"
             say(f"writing {fname}")
             EXPORTERS["step"][1](parts, stage.path(fname), opts)
-        files = stage.commit({"spec": Path(spec_path).name, "geomgen_version": __version__,
-                              "stl_tol_mm": stl_tol if "stl" in formats else None})
+        files = stage.commit(build_info(spec_path, stl_tol))
     return BuildResult(spec.name, Path(out_dir), results, files, time.perf_counter() - t0)

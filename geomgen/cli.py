@@ -90,6 +90,34 @@ def format_build_summary(res) -> str:
 
 @main.command()
 @click.argument("spec", type=click.Path(dir_okay=False))
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
+              help="output folder of the build [default: out/<spec name>]")
+@click.option("--rebuild", is_flag=True, help="build again even if the outputs are fresh")
+@click.option("--stl-tol", type=click.FloatRange(min=0.001, max=5.0), default=None,
+              help="STL chordal deviation of the build being checked, mm [default 0.05]")
+@click.option("--json", "as_json", is_flag=True, help="machine-readable output")
+def check(spec, out_dir, rebuild, stl_tol, as_json):
+    """Measure the files a build of SPEC wrote and hold them against the intended figures and
+    the spec's expect/check_at tables. Builds first when outputs are missing or stale.
+
+    Exit 0 all agree and pass; 1 an expectation failed or a written file departs from the
+    intended geometry (a geometry fault); 2 spec error; 3 geometry error.
+    """
+    import json
+
+    from .check.report import format_terminal
+    from .check.run import check as do_check
+
+    from . import defaults
+
+    res = _run(do_check, spec, out_dir, rebuild=rebuild, stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM,
+               progress=_Progress())
+    click.echo(json.dumps(res.as_dict(), indent=2, default=float) if as_json else format_terminal(res))
+    sys.exit(0 if res.ok else 1)
+
+
+@main.command()
+@click.argument("spec", type=click.Path(dir_okay=False))
 @click.option("--cg", "cg_x", type=float, default=None,
               help="datum x of the centre of gravity, mm (gives the static margin)")
 @click.option("--sideslip", is_flag=True, help="also put masts and fins in the lattice (side force)")

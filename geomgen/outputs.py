@@ -68,15 +68,22 @@ class Staging:
                 raise ExportError(f"{target} exists and was not written by geomgen; "
                                   "move it away or choose another output folder (nothing was written)")
 
-    def commit(self, extra: dict | None = None) -> list[Path]:
-        """Move every staged file into place and write the manifest; return final paths."""
+    def commit(self, info: dict | None = None) -> list[Path]:
+        """Move every staged file into place and update the manifest; return final paths.
+
+        ``info`` (e.g. the spec's hash) is recorded with each file written now; entries of
+        earlier runs stay in the manifest while their files are still there.
+        """
         previous = read_manifest(self.out_dir)
         self._check_foreign(previous)
-        files = []
+        from . import __version__
+
+        entries = {name: e for name, e in previous.items() if (self.out_dir / name).is_file()}
         for name in self.names:
             p = self.dir / name
-            files.append({"name": name, "size": p.stat().st_size, "sha256": _sha256(p)})
-        manifest = {"written_by": "geomgen", **(extra or {}), "files": files}
+            entries[name] = {"name": name, "size": p.stat().st_size, "sha256": _sha256(p),
+                             "geomgen_version": __version__, **(info or {})}
+        manifest = {"written_by": "geomgen", "files": [entries[n] for n in sorted(entries)]}
         (self.dir / MANIFEST).write_text(json.dumps(manifest, indent=2) + "\n")
         try:
             for name in self.names + [MANIFEST]:
@@ -89,3 +96,28 @@ class Staging:
         if self.dir is not None:
             shutil.rmtree(self.dir, ignore_errors=True)
         return False
+
+
+def output_state(out_dir, names, info: dict) -> tuple[bool, list[str]]:
+    """(current, modified): ``current`` if every file in ``names`` exists and was written by
+    this version of geomgen from the same spec and options (``info``); ``modified`` lists
+    those whose bytes no longer match what geomgen wrote (edited or corrupted since)."""
+    from . import __version__
+
+    entries = read_manifest(out_dir)
+    current, modified = True, []
+    for name in names:
+        e, p = entries.get(name), Path(out_dir) / name
+        if e is None or not p.is_file() or e.get("geomgen_version") != __version__ \
+                or any(e.get(k) != v for k, v in info.items()):
+            current = False
+            continue
+        if p.stat().st_size != e.get("size") or _sha256(p) != e.get("sha256"):
+            modified.append(name)
+    return current, modified
+
+
+def spec_digest(path) -> str:
+    """SHA-256 of a spec file's bytes (outputs are fresh only for the same spec)."""
+    return _sha256(Path(path))
+

@@ -16,7 +16,7 @@ def test_balance_text_and_json():
     assert r.exit_code == 0, r.output
     for word in ("Neutral point", "stabilizer", "kgf", "CAUTION", "static margin"):
         assert word.lower() in r.output.lower()
-    j = json.loads(CliRunner().invoke(main, ["balance", str(DEMO), "--json"]).output)
+    j = json.loads(CliRunner().invoke(main, ["balance", str(DEMO), "--json"]).stdout)
     assert j["neutral_point_x_mm"] is not None and len(j["trim"]) == 4
     # common practice, no source: the stabilizer pushes down at cruise
     assert all(t["lift_n"]["stabilizer"] < 0 for t in j["trim"])

@@ -34,6 +34,8 @@ class Figures:
     taper_ratio: float
     sweep_qc_deg: float
     volume_cm3: float
+    wetted_area_cm2: float = float("nan")
+    centroid_mm: tuple = (float("nan"),) * 3
 
     def as_dict(self) -> dict:
         return asdict(self)
@@ -68,11 +70,74 @@ def intended_figures(model) -> Figures:
     half = model.half_span - (0.0 if model.mirror else float(model.planform.y[0]))
     span = k * half
     area = k * area_half
-    vol = k * float(w @ np.array([model.section(v).area() * float(model.chord(v)) ** 2 for v in y]))
-    y0, y1 = float(model.planform.y[0]), float(model.planform.half_span)  # sweep: root to last station
+    vol = k * float(w @ np.array([model.section(v).area(1000) * float(model.chord(v)) ** 2 for v in y]))
+    y0, y1 = float(model.planform.y[0]), float(model.half_span)  # root to the outermost section
     (le0, c0), (le1, c1) = outline_at(model, y0), outline_at(model, y1)
     sweep = math.degrees(math.atan2((le1 + c1 / 4) - (le0 + c0 / 4), y1 - y0))
-    root, tip = float(model.chord(y0)), float(model.planform("chord", model.planform.half_span))
+    root, tip = float(model.chord(y0)), float(model.chord(y1))
     return Figures(span_mm=span, projected_area_cm2=area / 100.0, aspect_ratio=span**2 / area, mac_mm=mac,
                    mac_y_mm=y_mac, mac_le_x_mm=x_le, mac_qc_x_mm=x_le + mac / 4, root_chord_mm=root,
-                   tip_chord_mm=tip, taper_ratio=tip / root, sweep_qc_deg=sweep, volume_cm3=vol / 1000.0)
+                   tip_chord_mm=tip, taper_ratio=tip / root, sweep_qc_deg=sweep, volume_cm3=vol / 1000.0,
+                   wetted_area_cm2=surface_area(model) / 100.0, centroid_mm=tuple(centroid(model)))
+
+
+def _polygon(p2: np.ndarray) -> tuple[float, np.ndarray]:
+    """(area, centroid (2,)) of a closed polygon (n, 2) by the shoelace formula."""
+    x, y = p2[:, 0], p2[:, 1]
+    xn, yn = np.roll(x, -1), np.roll(y, -1)
+    cr = x * yn - xn * y
+    a = 0.5 * cr.sum()
+    return abs(a), np.array([((x + xn) * cr).sum(), ((y + yn) * cr).sum()]) / (6.0 * a)
+
+
+def centroid(model) -> np.ndarray:
+    """(3,) datum centroid of the solid, mm: ∫A(y)·c(y) dy / ∫A(y) dy over section planes."""
+    y, w = _nodes(model)
+    ys = np.concatenate([y, -y]) if model.mirror else y
+    ws = np.concatenate([w, w]) if model.mirror else w
+    num, den = np.zeros(3), 0.0
+    for v, wi in zip(ys, ws):
+        loop = model.section_loop(float(v), 150)
+        # the section plane is normal to the span axis: drop that coordinate for the polygon
+        span_ax = int(np.argmax(np.abs(model.span_axis)))
+        keep = [i for i in range(3) if i != span_ax]
+        a, c2 = _polygon(loop[:, keep])
+        c3 = np.empty(3)
+        c3[keep] = c2
+        c3[span_ax] = loop[0, span_ax]
+        num += wi * a * c3
+        den += wi * a
+    return num / den
+
+
+def surface_area(model) -> float:
+    """Total surface of the solid, mm²: skin, trailing-edge strip and end caps."""
+    skin = model.skin
+    total = skin.area()
+    if model.spec.te_thickness > 0:  # ruled strip between the skin's two edge rows
+        v0, v1 = skin.v_range
+        xg, wg = np.polynomial.legendre.leggauss(8)
+        kn = np.unique(skin.tv)
+        for a, b in zip(kn[:-1], kn[1:]):
+            v = 0.5 * (b - a) * xg + 0.5 * (a + b)
+            p = skin.evaluate([0.0, 1.0], v)  # (2, nv, 3)
+            _, dv = skin.derivatives([0.0, 1.0], v)
+            for t, wt in zip(0.5 * xg + 0.5, 0.5 * wg):
+                su = p[1] - p[0]
+                sv = (1 - t) * dv[0] + t * dv[1]
+                total += wt * float(0.5 * (b - a) * wg @ np.linalg.norm(np.cross(su, sv), axis=1))
+    ends = [model.y_range[0], model.y_range[1]]
+    for e in ends:
+        total += model.section(e).area(1000) * float(model.chord(e)) ** 2
+    return total
+
+
+def station_thickness(model, ys=None) -> list[dict]:
+    """Max thickness (mm, % chord) and its chord position (% chord) at the stations (or ``ys``)."""
+    out = []
+    for y in (model.planform.y if ys is None else ys):
+        t, x = model.section(float(y)).max_thickness()
+        c = float(model.chord(float(y)))
+        out.append({"y_mm": float(y), "chord_mm": c, "thickness_mm": t * c, "thickness_pct": 100 * t,
+                    "at_pct": 100 * x})
+    return out

@@ -33,15 +33,43 @@ class Skin:
     tu: np.ndarray
     tv: np.ndarray
     poles: np.ndarray
+    du: int = DEGREE
+    dv: int = DEGREE
 
     def evaluate(self, u, v) -> np.ndarray:
-        """Points (len(u), len(v), 3) at parameters u in [0, 1], v = span position (mm)."""
-        bu = BSpline(self.tu, self.poles, DEGREE, axis=0)(np.atleast_1d(u))  # (nu_eval, nv, 3)
-        return BSpline(self.tv, np.moveaxis(bu, 1, 0), DEGREE, axis=0)(np.atleast_1d(v)).transpose(1, 0, 2)
+        """Points (len(u), len(v), 3) at parameters u (chordwise) and v (spanwise)."""
+        bu = BSpline(self.tu, self.poles, self.du, axis=0)(np.atleast_1d(u))  # (nu_eval, nv, 3)
+        return BSpline(self.tv, np.moveaxis(bu, 1, 0), self.dv, axis=0)(np.atleast_1d(v)).transpose(1, 0, 2)
+
+    def derivatives(self, u, v) -> tuple[np.ndarray, np.ndarray]:
+        """(dP/du, dP/dv), each (len(u), len(v), 3)."""
+        u, v = np.atleast_1d(u), np.atleast_1d(v)
+        su = BSpline(self.tu, self.poles, self.du, axis=0).derivative()(u)
+        su = BSpline(self.tv, np.moveaxis(su, 1, 0), self.dv, axis=0)(v).transpose(1, 0, 2)
+        sv = BSpline(self.tu, self.poles, self.du, axis=0)(u)
+        sv = BSpline(self.tv, np.moveaxis(sv, 1, 0), self.dv, axis=0).derivative()(v).transpose(1, 0, 2)
+        return su, sv
+
+    @property
+    def u_range(self) -> tuple[float, float]:
+        return float(self.tu[0]), float(self.tu[-1])
 
     @property
     def v_range(self) -> tuple[float, float]:
         return float(self.tv[0]), float(self.tv[-1])
+
+    def area(self, nodes: int = 4) -> float:
+        """Surface area, mm², by Gauss-Legendre quadrature on every knot span."""
+        def gauss(t, deg):
+            kn = np.unique(t[deg:len(t) - deg])
+            xg, wg = np.polynomial.legendre.leggauss(nodes)
+            a, b = kn[:-1, None], kn[1:, None]
+            return (0.5 * (b - a) * xg + 0.5 * (a + b)).ravel(), (0.5 * (b - a) * wg).ravel()
+
+        u, wu = gauss(self.tu, self.du)
+        v, wv = gauss(self.tv, self.dv)
+        su, sv = self.derivatives(u, v)
+        return float(wu @ np.linalg.norm(np.cross(su, sv), axis=-1) @ wv)
 
 
 def build_skin(model, n_side: int = defaults.LOFT_POINTS_PER_SIDE) -> Skin:

@@ -65,7 +65,16 @@ class SurfaceModel:
         self.tip_length = 0.0
         if spec.tip == "round":
             self.tip_length = spec.tip_length or defaults.ROUND_TIP_LENGTH_OF_CHORD * float(planform("chord", last))
-        self._theta_max = math.acos(defaults.ROUND_TIP_END_CHORD)
+        self._theta_max = math.acos(spec.tip_end)
+
+    @property
+    def skin(self):
+        """The B-spline skin of this surface (built once; see :mod:`geomgen.geometry.skin`)."""
+        if getattr(self, "_skin", None) is None:
+            from .skin import build_skin
+
+            self._skin = build_skin(self)
+        return self._skin
 
     # -- rounded tip ----------------------------------------------------------------
     def tip_factor(self, y) -> np.ndarray:

@@ -72,6 +72,16 @@ class Expect(_Strict):
     wetted_area_cm2: Optional[Expectation] = None
 
 
+class CheckAt(_Strict):
+    """A shop or class-rule measurement at one span position of the written part."""
+
+    y: float = Field(ge=0.0, description="span position from the root (centreline of a mirrored part), mm")
+    chord: Optional[Expectation] = Field(None, description="expected chord, mm")
+    thickness: Optional[Expectation] = Field(None, description="expected maximum thickness, mm")
+    profile_tol: Optional[float] = Field(
+        None, gt=0.0, le=10.0, description="largest allowed distance of the written section from the intended one, mm")
+
+
 class SectionSpec(_Strict):
     """A named section: a NACA designation or a coordinate file, with optional changes."""
 
@@ -158,8 +168,12 @@ class SurfaceSpec(_Strict):
     tip_length: Optional[float] = Field(None, gt=0.0, le=2000.0,
                                         description="round tip: length beyond the last station, mm "
                                                     "(default half the last chord)")
+    tip_end: float = Field(defaults.ROUND_TIP_END_CHORD, ge=0.02, le=0.6,
+                           description="round tip: chord of the small flat end, as a fraction of the last chord")
     station: list[StationSpec] = Field(min_length=2, description="spanwise stations, root first")
     expect: Optional[Expect] = None
+    check_at: list[CheckAt] = Field(default_factory=list,
+                                    description="measurements at named span positions (chord, thickness, profile)")
 
     # station order and spacing are checked on the raw data in load.py, so they are
     # reported even when other fields of the same surface are wrong
