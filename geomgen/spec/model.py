@@ -14,6 +14,8 @@ from pydantic import BaseModel, ConfigDict, Field, field_validator, model_valida
 from .. import defaults
 from ..sections.naca import parse_designation
 from .flight import FlightSpec
+from .shop2d import ShopSpec
+from .shop3d import LaminateSpec, MountSpec, PrintingSpec
 
 
 class _Strict(BaseModel):
@@ -174,6 +176,10 @@ class SurfaceSpec(_Strict):
     expect: Optional[Expect] = None
     check_at: list[CheckAt] = Field(default_factory=list,
                                     description="measurements at named span positions (chord, thickness, profile)")
+    shop: Optional[ShopSpec] = Field(None, description="section templates, offset tables, hot-wire profiles")
+    mount: Optional[MountSpec] = Field(None, description="mounting pad and bolt holes")
+    printing: Optional[PrintingSpec] = Field(None, description="printable pieces, locators, spar channels")
+    laminate: Optional[LaminateSpec] = Field(None, description="cores and moulds")
 
     # station order and spacing are checked on the raw data in load.py, so they are
     # reported even when other fields of the same surface are wrong
