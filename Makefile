@@ -10,7 +10,7 @@ $(STAMP): pyproject.toml
 	$(BIN)/python -m pip install -q -e '.[test]'
 	touch $(STAMP)
 
-.PHONY: demo test test-fast bench setup
+.PHONY: demo test test-fast bench setup fuzz-long
 setup: $(STAMP)
 
 demo: $(STAMP)
@@ -25,3 +25,7 @@ test-fast: $(STAMP)
 bench: $(STAMP)
 	$(BIN)/python bench/bench.py
 	$(BIN)/python bench/bench_hydro.py
+
+# Long property-based run (>= 10,000 generated specs); result recorded in DEVELOPERS.md.
+fuzz-long: $(STAMP)
+	GEOMGEN_FUZZ=long $(BIN)/python -m pytest -q tests/test_fuzz.py -p no:cacheprovider

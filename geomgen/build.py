@@ -61,6 +61,7 @@ class BuildResult:
     parts: list[PartResult]
     files: list[Path]
     seconds: float
+    notes: list = field(default_factory=list)
 
 
 def build_info(spec_path, stl_tol: float) -> dict:
@@ -81,7 +82,8 @@ def output_names(spec_name: str, part_names, formats=("step", "stl"), assembly: 
 
 
 def build(spec_path, out_dir, *, formats=("step", "stl"), stl_tol: float = defaults.STL_LINEAR_TOL_MM,
-          assembly: bool = True, progress: Callable[[str], None] | None = None) -> BuildResult:
+          assembly: bool = True, progress: Callable[[str], None] | None = None,
+          allow_outside_files: bool = False) -> BuildResult:
     """Build every surface of the spec at ``spec_path`` into ``out_dir``.
 
     Raises SpecError (exit 2), GeometryError or ExportError (exit 3). Either every file is
@@ -92,7 +94,7 @@ def build(spec_path, out_dir, *, formats=("step", "stl"), stl_tol: float = defau
 
     t0 = time.perf_counter()
     say = progress or (lambda msg: None)
-    spec = load_spec(spec_path)
+    spec = load_spec(spec_path, allow_outside_files)
     parts = [Part(m) for m in build_models(spec)]
     results = [PartResult(p.name, p.model.role, intended_figures(p.model)) for p in parts]
     for p in parts:  # make every solid (and so refuse invalid geometry) before writing anything
@@ -112,4 +114,20 @@ def build(spec_path, out_dir, *, formats=("step", "stl"), stl_tol: float = defau
             say(f"writing {fname}")
             EXPORTERS["step"][1](parts, stage.path(fname), opts)
         files = stage.commit(build_info(spec_path, stl_tol))
-    return BuildResult(spec.name, Path(out_dir), results, files, time.perf_counter() - t0)
+    return BuildResult(spec.name, Path(out_dir), results, files, time.perf_counter() - t0, fit_notes(spec, parts))
+
+
+def fit_notes(spec, parts) -> list[str]:
+    """One line per section fitted to a coordinate file: its largest deviation from the file."""
+    notes = []
+    named = parts[0].model.named_sections if parts else {}
+    for name, sspec in spec.sections.items():
+        sec = named.get(name)
+        if sspec.file is None or sec is None or sec.fit_deviation is None:
+            continue
+        chords = [st.chord for sf in spec.surface for st in sf.station if st.section == name or
+                  (st.blend is not None and st.blend.section == name)]
+        mm = f" ({sec.fit_deviation * max(chords):.3f} mm at its largest chord, {max(chords):g} mm)" if chords else ""
+        notes.append(f"section '{name}' fitted to {sspec.file}: largest deviation from the file's points "
+                     f"{100 * sec.fit_deviation:.4f} % chord{mm}")
+    return notes

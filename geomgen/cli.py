@@ -44,14 +44,23 @@ class _Progress:
             click.echo(f"[{dt:5.1f} s] {msg}", err=True)
 
 
+def _outside() -> bool:
+    ctx = click.get_current_context()
+    return bool((ctx.find_root().obj or {}).get("allow_outside_files"))
+
+
 @click.group(context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="geomgen")
-def main():
+@click.option("--allow-outside-files", is_flag=True,
+              help="let a spec read coordinate files outside its own folder")
+@click.pass_context
+def main(ctx, allow_outside_files):
     """geomgen: a lifting-surface spec (TOML) to STEP solids and STL meshes, measured back.
 
     Frame: x aft, y starboard, z up; mm and degrees. Exit codes: 0 ok, 1 a check failed,
     2 the spec or the command line is wrong, 3 geometry could not be made or written.
     """
+    ctx.obj = {"allow_outside_files": allow_outside_files}
 
 
 @main.command()
@@ -69,7 +78,8 @@ def build(spec, out_dir, stl_tol, no_stl):
 
     out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
     res = _run(do_build, spec, out, formats=("step",) if no_stl else ("step", "stl"),
-               stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM, progress=_Progress())
+               stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM, progress=_Progress(),
+               allow_outside_files=_outside())
     click.echo(format_build_summary(res))
 
 
@@ -82,7 +92,10 @@ def format_build_summary(res) -> str:
         f = p.figures
         lines.append(f"{p.name:<16} {p.role:<10} {f.span_mm:9.1f} {f.projected_area_cm2:10.1f} "
                      f"{f.aspect_ratio:6.2f} {f.mac_mm:8.2f} {f.volume_cm3:11.1f}")
-    lines += ["", "intended figures (from the spec); 'geomgen check' measures the files.", "", "written:"]
+    lines += ["", "intended figures (from the spec); 'geomgen check' measures the files."]
+    if res.notes:
+        lines += [""] + [f"note: {n}" for n in res.notes]
+    lines += ["", "written:"]
     lines += [f"  {p}" for p in res.files]
     lines += ["", "CAUTION: " + CAUTION]
     return "\n".join(lines)
@@ -111,7 +124,7 @@ def check(spec, out_dir, rebuild, stl_tol, as_json):
     from . import defaults
 
     res = _run(do_check, spec, out_dir, rebuild=rebuild, stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM,
-               progress=_Progress())
+               progress=_Progress(), allow_outside_files=_outside())
     click.echo(json.dumps(res.as_dict(), indent=2, default=float) if as_json else format_terminal(res))
     sys.exit(0 if res.ok else 1)
 
@@ -133,7 +146,7 @@ def balance(spec, cg_x, sideslip, as_json):
     from .hydro import analyse_spec, format_hydro
     from .spec import load_spec
 
-    res = _run(lambda: analyse_spec(load_spec(spec), cg_x_mm=cg_x, include_vertical=sideslip or None))
+    res = _run(lambda: analyse_spec(load_spec(spec, _outside()), cg_x_mm=cg_x, include_vertical=sideslip or None))
     click.echo(json.dumps(res.as_dict(), indent=2) if as_json else format_hydro(res))
 
 

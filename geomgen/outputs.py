@@ -84,13 +84,43 @@ class Staging:
             entries[name] = {"name": name, "size": p.stat().st_size, "sha256": _sha256(p),
                              "geomgen_version": __version__, **(info or {})}
         manifest = {"written_by": "geomgen", "files": [entries[n] for n in sorted(entries)]}
-        (self.dir / MANIFEST).write_text(json.dumps(manifest, indent=2) + "\n")
         try:
-            for name in self.names + [MANIFEST]:
-                os.replace(self.dir / name, self.out_dir / name)
+            (self.dir / MANIFEST).write_text(json.dumps(manifest, indent=2) + "\n")
         except OSError as exc:
-            raise ExportError(f"{self.out_dir}: moving outputs into place failed: {exc.strerror or exc}") from None
+            raise ExportError(f"{self.out_dir}: cannot write the manifest: {exc.strerror or exc}") from None
+        self._swap_in(self.names + [MANIFEST])
         return [self.out_dir / n for n in self.names]
+
+    def _swap_in(self, names: list[str]) -> None:
+        """Move staged files into place; on any failure put every earlier output back.
+
+        Each existing output is first moved aside into the staging folder (a rename on the
+        same filesystem), so a failure half-way can be undone exactly.
+        """
+        backup = self.dir / ".previous"
+        backup.mkdir()
+        moved_aside, placed = [], []
+        try:
+            for name in names:
+                target = self.out_dir / name
+                if target.exists():
+                    os.replace(target, backup / name)
+                    moved_aside.append(name)
+                os.replace(self.dir / name, target)
+                placed.append(name)
+        except OSError as exc:
+            for name in placed:
+                try:
+                    os.remove(self.out_dir / name)
+                except OSError:
+                    pass
+            for name in moved_aside:
+                try:
+                    os.replace(backup / name, self.out_dir / name)
+                except OSError:
+                    pass
+            raise ExportError(f"{self.out_dir}: moving outputs into place failed ({exc.strerror or exc}); "
+                              "the previous outputs were put back") from None
 
     def __exit__(self, *exc):
         if self.dir is not None:

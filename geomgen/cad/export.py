@@ -49,10 +49,48 @@ def write_step(parts, path: Path, options: dict) -> None:
     Interface_Static.SetCVal_s("write.step.schema", "AP214IS")
     writer = STEPCAFControl_Writer()
     writer.SetNameMode(True)
-    if not writer.Transfer(doc, STEPControl_AsIs) or writer.Write(str(path)) != IFSelect_RetDone:
+    if not writer.Transfer(doc, STEPControl_AsIs):
+        raise ExportError(f"{path}: STEP transfer failed")
+    _fixed_header(writer, Path(path).name)
+    if writer.Write(str(path)) != IFSelect_RetDone:
         raise ExportError(f"{path}: STEP writer failed")
+    if len(parts) > 1:
+        _renumber_occurrences(Path(path))
     if not Path(path).is_file() or Path(path).stat().st_size == 0:
         raise ExportError(f"{path}: STEP writer produced no file")
+
+
+#: The STEP header's time stamp is fixed so the same spec and version give the same bytes;
+#: when a file was made is recorded by the file system and the build, not inside the file.
+STEP_TIME_STAMP = "2000-01-01T00:00:00"
+
+
+def _fixed_header(writer, file_name: str) -> None:
+    """Deterministic FILE_NAME header: fixed time stamp, geomgen as author and system."""
+    from OCP.APIHeaderSection import APIHeaderSection_MakeHeader
+    from OCP.TCollection import TCollection_HAsciiString
+
+    from .. import __version__
+
+    hdr = APIHeaderSection_MakeHeader(writer.ChangeWriter().Model())
+    hdr.SetName(TCollection_HAsciiString(file_name))
+    hdr.SetTimeStamp(TCollection_HAsciiString(STEP_TIME_STAMP))
+    hdr.SetAuthorValue(1, TCollection_HAsciiString("geomgen"))
+    hdr.SetOrganizationValue(1, TCollection_HAsciiString("geomgen"))
+    hdr.SetOriginatingSystem(TCollection_HAsciiString(f"geomgen {__version__}"))
+    hdr.SetAuthorisation(TCollection_HAsciiString(""))
+
+
+def _renumber_occurrences(path: Path) -> None:
+    """Number assembly occurrences 1, 2, ... in file order (the writer keeps a process-wide
+    counter, so a second build in one process would otherwise differ in these ids)."""
+    import re
+
+    text = path.read_bytes()
+    counter = iter(range(1, 1 << 30))
+    text = re.sub(rb"NEXT_ASSEMBLY_USAGE_OCCURRENCE\('\d+'",
+                  lambda m: b"NEXT_ASSEMBLY_USAGE_OCCURRENCE('%d'" % next(counter), text)
+    path.write_bytes(text)
 
 
 STL_HEADER = b"geomgen binary STL, units mm".ljust(80, b" ")

@@ -45,7 +45,7 @@ class CheckResult:
 
 
 def check(spec_path, out_dir=None, *, rebuild: bool = False, stl_tol: float = defaults.STL_LINEAR_TOL_MM,
-          write_record: bool = True, progress=None) -> CheckResult:
+          write_record: bool = True, progress=None, allow_outside_files: bool = False) -> CheckResult:
     """Measure what a build of ``spec_path`` wrote and hold it against the intended figures
     and the spec's ``expect`` and ``check_at`` tables. Raises SpecError / GeometryError;
     returns the result whatever the verdicts (see :attr:`CheckResult.ok`)."""
@@ -57,7 +57,7 @@ def check(spec_path, out_dir=None, *, rebuild: bool = False, stl_tol: float = de
 
     say = progress or (lambda m: None)
     t0 = time.perf_counter()
-    spec = load_spec(spec_path)
+    spec = load_spec(spec_path, allow_outside_files)
     models = build_models(spec)
     out = Path(out_dir) if out_dir else Path("out") / Path(spec_path).stem
     names = output_names(spec.name, [m.name for m in models])
@@ -65,7 +65,7 @@ def check(spec_path, out_dir=None, *, rebuild: bool = False, stl_tol: float = de
     built = rebuild or not current
     if built:
         say("building (outputs missing or from another spec or version)")
-        build(spec_path, out, stl_tol=stl_tol, progress=progress)
+        build(spec_path, out, stl_tol=stl_tol, progress=progress, allow_outside_files=allow_outside_files)
         modified = []
     t1 = time.perf_counter()
 

@@ -14,7 +14,7 @@ from .planform import Planform, station_offsets
 from .surface import SurfaceModel
 
 
-def resolve_section(name: str, sspec, base_dir: Path) -> Section:
+def resolve_section(name: str, sspec, base_dir: Path, allow_outside: bool = False) -> Section:
     """A named spec section as a unit-chord :class:`Section` (raises SpecError)."""
     field = f"sections {name}"
     if sspec.naca is not None:
@@ -22,7 +22,11 @@ def resolve_section(name: str, sspec, base_dir: Path) -> Section:
     else:
         from ..sections.coords import read_coordinates
 
-        sec = read_coordinates(base_dir / sspec.file, field=f"{field} file")
+        path = (base_dir / sspec.file).resolve()
+        if not allow_outside and not path.is_relative_to(base_dir.resolve()):
+            raise SpecError(f"file: '{sspec.file}' lies outside the spec's folder {base_dir.resolve()}; "
+                            "move it next to the spec or allow it explicitly (--allow-outside-files)")
+        sec = read_coordinates(path, field=f"{field} file")
     if sspec.thickness_pct is not None:
         t, _ = sec.max_thickness()
         sec = sec.scaled_thickness(sspec.thickness_pct / 100.0 / t)
@@ -98,7 +102,7 @@ def build_models(spec, source: str | Path = "<spec>") -> list[SurfaceModel]:
     sections: dict[str, Section] = {}
     for name, sspec in spec.sections.items():
         try:
-            sections[name] = resolve_section(name, sspec, base_dir)
+            sections[name] = resolve_section(name, sspec, base_dir, getattr(spec, "_allow_outside_files", False))
         except SpecError as exc:
             problems += [f"{src}: sections {name}: {p}" if not p.startswith(str(src)) else p
                          for p in exc.problems]
@@ -117,6 +121,7 @@ def build_models(spec, source: str | Path = "<spec>") -> list[SurfaceModel]:
         pf = Planform([s.y for s in st], [s.chord for s in st], xs, zs, [s.twist for s in st],
                       keys, sf.interpolation)
         model = SurfaceModel(sf, pf, blended)
+        model.named_sections = sections
         where = sorted({float(abs(v)) for seg in model.loft_y() for v in seg} | {s.y for s in st})
         bad = _check_trailing_edge(model, where)
         if bad:

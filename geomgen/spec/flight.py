@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Annotated, Literal, Optional, Union
 
-from pydantic import BaseModel, ConfigDict, Field
+from pydantic import BaseModel, ConfigDict, Field, StrictBool
 
 #: Default vortex-lattice strips per half span (cosine spaced). At these counts doubling
 #: both counts moves the neutral point of the demo set by well under 0.2 % MAC
@@ -37,7 +37,7 @@ class FlightSpec(BaseModel):
                              description="vortex-lattice strips per half span (cosine spaced)")
     chord_panels: int = Field(DEFAULT_CHORD_PANELS, ge=1, le=40,
                               description="vortex-lattice panels along the chord")
-    include_vertical: bool = Field(
+    include_vertical: StrictBool = Field(
         False, description="put masts and fins in the lattice and report sideslip (side force)")
-    vertical_in_pitch: bool = Field(
+    vertical_in_pitch: StrictBool = Field(
         False, description="count masts and fins in the pitch balance as well (normally left out)")

@@ -156,11 +156,16 @@ def load_spec_text(text: str, source: str = "<spec>") -> Spec:
     problems += _cross_checks(data)
     if problems:
         raise SpecError([f"{source}: {p}" for p in problems])
+    spec._source = Path(source)  # type: ignore[attr-defined]  (messages and relative files)
     return spec
 
 
-def load_spec(path) -> Spec:
-    """Read and validate a spec file. The spec keeps its folder for relative file paths."""
+def load_spec(path, allow_outside_files: bool = False) -> Spec:
+    """Read and validate a spec file. The spec keeps its folder for relative file paths.
+
+    Coordinate files must lie inside the spec's folder (a shared spec cannot read arbitrary
+    files) unless ``allow_outside_files`` is given.
+    """
     path = Path(path)
     try:
         raw = path.read_bytes()
@@ -172,4 +177,5 @@ def load_spec(path) -> Spec:
         raise SpecError([f"{path}: not a text file (not UTF-8)"]) from None
     spec = load_spec_text(text, str(path))
     spec._source = path  # type: ignore[attr-defined]
+    spec._allow_outside_files = allow_outside_files  # type: ignore[attr-defined]
     return spec

@@ -9,7 +9,7 @@ from __future__ import annotations
 import re
 from typing import Literal, Optional, Union
 
-from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
+from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator, model_validator
 
 from .. import defaults
 from ..sections.naca import parse_designation
@@ -89,10 +89,10 @@ class SectionSpec(_Strict):
 
     naca: Optional[str] = Field(None, description="NACA 4- or 5-digit designation, e.g. '2412', '23012'")
     file: Optional[str] = Field(None, description="coordinate file, relative to the spec file")
-    closed_te: bool = Field(False, description="NACA only: closed trailing-edge thickness coefficient")
+    closed_te: StrictBool = Field(False, description="NACA only: closed trailing-edge thickness coefficient")
     thickness_pct: Optional[float] = Field(
         None, gt=0.5, le=40.0, description="rescale so the maximum thickness is this % of chord")
-    invert: bool = Field(False, description="mirror the camber (pressure side on top)")
+    invert: StrictBool = Field(False, description="mirror the camber (pressure side on top)")
 
     @field_validator("naca")
     @classmethod
@@ -151,7 +151,7 @@ class SurfaceSpec(_Strict):
     orientation: Literal["horizontal", "vertical-up", "vertical-down"] = Field(
         "horizontal", description="horizontal: span along +y; vertical-up: span along +z (mast); "
                                   "vertical-down: span along -z (fin)")
-    mirror: bool = Field(False, description="stations describe one half; the part spans both sides")
+    mirror: StrictBool = Field(False, description="stations describe one half; the part spans both sides")
     position: tuple[float, float, float] = Field(
         (0.0, 0.0, 0.0), description="datum position of the root reference point [x, y, z], mm")
     reference: float = Field(0.25, ge=0.0, le=1.0,

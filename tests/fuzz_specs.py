@@ -1,0 +1,99 @@
+"""Hypothesis strategies for specs: valid ones across the parameter space, and broken ones.
+
+Used by tests/test_fuzz.py. Profiles: ``fast`` (default test run) and ``long``
+(``GEOMGEN_FUZZ=long``, ≥ 10,000 cases; see DEVELOPERS.md).
+"""
+
+from __future__ import annotations
+
+import os
+
+from hypothesis import HealthCheck, settings
+from hypothesis import strategies as st
+
+settings.register_profile("fast", max_examples=25, deadline=None,
+                          suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
+settings.register_profile("long", max_examples=10_000, deadline=None,
+                          suppress_health_check=list(HealthCheck))
+PROFILE = os.environ.get("GEOMGEN_FUZZ", "fast")
+
+FIVE = ["21012", "22012", "23012", "24012", "25012", "22112", "23112", "24112", "25112", "23015", "44018"]
+
+
+@st.composite
+def naca_designation(draw):
+    if draw(st.booleans()):
+        t = draw(st.integers(6, 21))
+        if draw(st.booleans()):
+            return f"00{t:02d}"
+        return f"{draw(st.integers(1, 6))}{draw(st.integers(2, 6))}{t:02d}"
+    return draw(st.sampled_from(FIVE))
+
+
+@st.composite
+def spec_params(draw):
+    n = draw(st.integers(2, 5))
+    gaps = draw(st.lists(st.floats(5.0, 300.0), min_size=n - 1, max_size=n - 1))
+    ys = [0.0]
+    for g in gaps:
+        ys.append(ys[-1] + g)
+    root = draw(st.floats(40.0, 400.0))
+    chords = [root] + [root * draw(st.floats(0.2, 1.2)) for _ in range(n - 1)]
+    stations = []
+    for i, (y, c) in enumerate(zip(ys, chords)):
+        s = {"y": round(y, 3), "chord": round(c, 3)}
+        if i:
+            if draw(st.booleans()):
+                s["sweep"] = draw(st.floats(-30.0, 45.0))
+            else:
+                s["x"] = draw(st.floats(-100.0, 200.0))
+            if draw(st.booleans()):
+                s["dihedral"] = draw(st.floats(-20.0, 20.0))
+            else:
+                s["z"] = draw(st.floats(-100.0, 100.0))
+            s["twist"] = draw(st.floats(-10.0, 10.0))
+        s["section"] = draw(st.sampled_from(["a", "b"]))
+        stations.append(s)
+    return {
+        "a": draw(naca_designation()), "b": draw(naca_designation()),
+        "invert_b": draw(st.booleans()),
+        "thickness_b": draw(st.one_of(st.none(), st.floats(6.0, 20.0))),
+        "mirror": draw(st.booleans()),
+        "orientation": draw(st.sampled_from(["horizontal", "vertical-up", "vertical-down"])),
+        "interpolation": draw(st.sampled_from(["linear", "smooth"])),
+        "incidence": draw(st.floats(-10.0, 10.0)),
+        "te": draw(st.sampled_from([0.0, 0.3, 0.6, 1.0, 1.5])),
+        "tip": draw(st.sampled_from(["flat", "flat", "round"])),
+        "reference": draw(st.sampled_from([0.0, 0.25, 0.5])),
+        "stations": stations,
+    }
+
+
+def spec_text(p: dict) -> str:
+    lines = ['format = 1', 'name = "fz"', '[datum]', 'origin = "fuzz origin"',
+             '[sections.a]', f'naca = "{p["a"]}"', '[sections.b]', f'naca = "{p["b"]}"',
+             f'invert = {str(p["invert_b"]).lower()}']
+    if p["thickness_b"] is not None:
+        lines.append(f'thickness_pct = {p["thickness_b"]!r}')
+    lines += ['[[surface]]', 'name = "part"', 'role = "wing"', f'mirror = {str(p["mirror"]).lower()}',
+              f'orientation = "{p["orientation"]}"', f'interpolation = "{p["interpolation"]}"',
+              f'incidence = {p["incidence"]!r}', f'te_thickness = {p["te"]!r}', f'tip = "{p["tip"]}"',
+              f'reference = {p["reference"]!r}']
+    for s in p["stations"]:
+        lines.append("[[surface.station]]")
+        for k, v in s.items():
+            lines.append(f'{k} = "{v}"' if isinstance(v, str) else f"{k} = {v!r}")
+    return "\n".join(lines) + "\n"
+
+
+#: (TOML path, bad value) pairs: every field of the surface and station made wrong in turn.
+BAD_VALUES = [
+    ("format", "2"), ("name", '"has space"'), ("name", "3"),
+    ("surface.role", '"wingg"'), ("surface.orientation", '"sideways"'), ("surface.mirror", '"yes"'),
+    ("surface.position", "[1, 2]"), ("surface.reference", "1.5"), ("surface.incidence", "45"),
+    ("surface.te_thickness", "-1"), ("surface.interpolation", '"cubic"'), ("surface.loft_sections", "2"),
+    ("surface.tip", '"pointed"'), ("station.y", '"ten"'), ("station.chord", "0"), ("station.chord", "-5"),
+    ("station.twist", "90"), ("station.sweep", "89"), ("station.section", '"nope"'), ("station.dihedral", "80"),
+    ("sections.naca", '"2A12"'), ("sections.naca", '"26012"'), ("sections.naca", '"1"'),
+    ("surface.unknown_key", "1"), ("station.unknown_key", "1"),
+]
