@@ -142,5 +142,7 @@ def test_check_json_and_reuse(tmp_path):
     assert r.exit_code == 0, r.output
     data = json.loads(r.stdout)
     assert data["ok"] and data["built"]
+    # the balance from the same geometry model rides along (the demo has a [flight] table)
+    assert data["balance"]["neutral_point_x_mm"] < 0 and len(data["balance"]["trim"]) == 4
     again = json.loads(CliRunner().invoke(main, ["check", str(DEMO), "-o", str(out), "--json"]).stdout)
     assert again["built"] is False  # fresh outputs are reused, not rebuilt

@@ -52,6 +52,27 @@ def summary_lines(res) -> list[str]:
     return lines
 
 
+def balance_lines(res) -> list[str]:
+    """Short balance summary from the vortex-lattice result (full table: geomgen balance)."""
+    b = res.balance
+    if not b:
+        return []
+    ref = b["reference"]
+    out = [f"Balance (vortex-lattice method; details: geomgen balance): neutral point x = "
+           f"{b['neutral_point_x_mm']:.1f} mm, {abs(b['neutral_point_from_mast_mm']):.1f} mm "
+           f"{'ahead of' if b['neutral_point_from_mast_mm'] < 0 else 'behind'} the mast ({ref['mast_reference']}), "
+           f"{b['neutral_point_pct_mac']:.1f} % of the front wing's MAC"]
+    if b.get("static_margin_pct") is not None:
+        out.append(f"static margin {b['static_margin_pct']:.1f} % MAC for the weight at x = {b['cg_x_mm']:.1f} mm")
+    for t in b.get("trim") or []:
+        lifts = ", ".join(f"{k} {v:+.0f} N ({b_kgf:+.1f} kgf)" for (k, v), b_kgf in
+                          zip(t["lift_n"].items(), t["lift_kgf"].values()))
+        cp = t.get("cp_from_mast_mm")
+        where = "-" if cp is None else f"{abs(cp):.0f} mm {'ahead of' if cp < 0 else 'behind'} the mast"
+        out.append(f"  {t['speed_kmh']:5.1f} km/h: {lifts}; weight must act {where}")
+    return out
+
+
 def format_terminal(res) -> str:
     header, rows = _rows(res)
     widths = [max(len(str(x)) for x in col) for col in zip(header, *rows)]
@@ -69,6 +90,8 @@ def format_terminal(res) -> str:
         out.append(fmt(row))
     out += ["", "Δ = measured (STEP, else STL) − intended; build tol = STEP tolerance.", ""]
     out += summary_lines(res)
+    if res.balance:
+        out += [""] + balance_lines(res)
     out += ["", "CAUTION: " + CAUTION]
     return "\n".join(out)
 
@@ -83,5 +106,7 @@ def format_markdown(res) -> str:
            "| " + " | ".join(header) + " |", "|" + "---|" * len(header)]
     out += ["| " + " | ".join(str(c) for c in row) + " |" for row in rows]
     out += ["", "## Verdict", ""] + [f"- {line}" for line in summary_lines(res)]
+    if res.balance:
+        out += ["", "## Balance", ""] + [f"- {line.strip()}" for line in balance_lines(res)]
     out += ["", "## Caution", "", CAUTION, ""]
     return "\n".join(out)

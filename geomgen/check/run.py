@@ -23,6 +23,7 @@ class CheckResult:
     stl_tol: float = defaults.STL_LINEAR_TOL_MM
     record_files: list = field(default_factory=list)
     modified: list = field(default_factory=list)  # outputs changed since geomgen wrote them
+    balance: dict | None = None  # vortex-lattice summary when the spec has a [flight] table
 
     @property
     def faults(self) -> list[Record]:
@@ -41,7 +42,8 @@ class CheckResult:
         return {"geomgen_version": __version__, "spec": self.spec_name, "out_dir": str(self.out_dir),
                 "built": self.built, "ok": self.ok, "modified_since_written": self.modified, "stl_tol_mm": self.stl_tol,
                 "parts": {k: {kk: vv for kk, vv in v.items()} for k, v in self.parts.items()},
-                "records": [r.as_dict() for r in self.records], "seconds": self.seconds, "caution": CAUTION}
+                "records": [r.as_dict() for r in self.records], "balance": self.balance,
+                "seconds": self.seconds, "caution": CAUTION}
 
 
 def check(spec_path, out_dir=None, *, rebuild: bool = False, stl_tol: float = defaults.STL_LINEAR_TOL_MM,
@@ -100,6 +102,10 @@ def check(spec_path, out_dir=None, *, rebuild: bool = False, stl_tol: float = de
     res = CheckResult(spec.name, out, built, records, parts,
                       {"build_or_reuse": t1 - t0, "kernel_import": t2 - t1, "measure": t3 - t2}, stl_tol)
     res.modified = modified
+    if spec.flight is not None:
+        from ..hydro import analyse
+
+        res.balance = analyse(models, spec.flight).as_dict()
     if write_record:
         from ..outputs import Staging
         from .report import format_markdown
