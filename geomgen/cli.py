@@ -151,6 +151,19 @@ def balance(spec, cg_x, sideslip, as_json):
 
 
 @main.command()
+@click.argument("spec", type=click.Path(dir_okay=False))
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
+              help="output folder [default: out/<spec name>]")
+def drawings(spec, out_dir):
+    """Shaper's drawings of SPEC: 1:1 section templates (DXF and SVG with scale rulers),
+    offset tables (CSV) and hot-wire profiles with matching point counts."""
+    from .shop import format_shop_summary, write_shop_drawings
+
+    out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
+    click.echo(format_shop_summary(_run(write_shop_drawings, spec, out, progress=_Progress())))
+
+
+@main.command()
 def schema():
     """Print the JSON Schema of the spec (for editors)."""
     import json

@@ -1,14 +1,88 @@
-"""Spec tables for the shaper's 2D outputs (templates, offset tables, hot-wire profiles).
+"""Spec table for the shaper's 2D outputs: section templates, offset tables, hot-wire profiles.
 
-``[surface.shop]``; filled in by the shop-drawing work.
+``[surface.shop]`` (optional; every surface gets the drawings with these defaults when
+the table is absent). Lengths mm, chord positions in % of the local chord. Span
+positions are measured like station ``y`` (from the root reference point; a mirrored
+part's drawings serve both sides). Whether a span position lies on the part is checked
+when the drawings are made, because only the geometry knows the tip.
 """
 
 from __future__ import annotations
 
-from pydantic import BaseModel, ConfigDict
+from typing import Annotated, Optional
+
+from pydantic import BaseModel, ConfigDict, Field, field_validator
+
+#: Default chord positions of the offset table, % chord: the classic table spacing, dense
+#: at the nose where the shape changes fastest (common practice, no source).
+OFFSET_PCT_DEFAULT = (0.0, 1.25, 2.5, 5.0, 7.5, 10.0, 15.0, 20.0, 25.0, 30.0, 40.0, 50.0,
+                      60.0, 70.0, 80.0, 90.0, 95.0, 100.0)
+
+SpanPos = Annotated[float, Field(ge=0.0, le=5000.0)]
+ChordPct = Annotated[float, Field(ge=0.0, le=100.0)]
+
+
+def _strictly_increasing(values, what: str):
+    for a, b in zip(values[:-1], values[1:]):
+        if b <= a:
+            raise ValueError(f"{what} must be strictly increasing, got {b:g} after {a:g}")
+    return values
 
 
 class ShopSpec(BaseModel):
-    """Section templates, offset tables and hot-wire profiles of one surface."""
+    """Section templates (DXF + printable SVG), offset tables (CSV) and hot-wire profiles."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", validate_default=True)
+
+    # -- templates ----------------------------------------------------------------
+    templates_at: list[SpanPos] = Field(
+        default_factory=list,
+        description="extra span positions for section templates and offset rows, mm from the root "
+                    "(every station is always included)")
+    template_spacing_mm: float = Field(
+        12.0, gt=0.0, le=200.0, description="gap between templates stacked on a sheet, mm")
+    template_margin_mm: float = Field(10.0, ge=0.0, le=100.0, description="margin around the sheet, mm")
+    template_tol_mm: float = Field(
+        0.002, ge=0.0005, le=0.1,
+        description="largest gap between a drawn template outline (polyline) and the true section, mm")
+    label_height_mm: float = Field(3.0, ge=1.0, le=20.0, description="text height of template labels, mm")
+
+    # -- offset tables ------------------------------------------------------------
+    offset_pct: list[ChordPct] = Field(
+        default_factory=lambda: list(OFFSET_PCT_DEFAULT), min_length=2,
+        description="chord positions of the offset table, % of the local chord from the leading edge")
+
+    # -- hot-wire profiles ----------------------------------------------------------
+    hotwire: bool = Field(True, description="write hot-wire profiles for foam-core panels")
+    hotwire_cuts: Optional[list[SpanPos]] = Field(
+        None, min_length=2,
+        description="span positions where the half span is cut into foam panels, mm from the root, "
+                    "increasing; each neighbouring pair is one panel (default: the stations)")
+    hotwire_points: int = Field(
+        100, ge=10, le=1000,
+        description="points per side (upper and lower) of each hot-wire profile; both ends of a "
+                    "panel get the same count at the same chord parameter")
+    kerf_mm: float = Field(
+        0.0, ge=0.0, le=5.0,
+        description="hot-wire kerf, mm: the wire path is offset outward by half of it so the core "
+                    "comes out at size (0 = no compensation)")
+    hotwire_corner_points: int = Field(
+        7, ge=2, le=64,
+        description="points on the rounded wire path around each trailing-edge corner when kerf_mm > 0")
+
+    @field_validator("templates_at")
+    @classmethod
+    def _unique(cls, v):
+        if len(set(v)) != len(v):
+            raise ValueError("span positions must not repeat")
+        return v
+
+    @field_validator("offset_pct")
+    @classmethod
+    def _offsets(cls, v):
+        return _strictly_increasing(v, "chord positions")
+
+    @field_validator("hotwire_cuts")
+    @classmethod
+    def _cuts(cls, v):
+        return v if v is None else _strictly_increasing(v, "cut positions")
