@@ -164,6 +164,24 @@ def drawings(spec, out_dir):
 
 
 @main.command()
+@click.argument("spec", type=click.Path(dir_okay=False))
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
+              help="output folder [default: out/<spec name>]")
+def report(spec, out_dir):
+    """One self-contained design report of SPEC (HTML with embedded plots, plus Markdown and
+    JSON): views with MAC, neutral point and centres of pressure, sections, spanwise plots,
+    the check table and the trim table. Builds and checks first when needed."""
+    from .report import write_report
+
+    out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
+    files = _run(write_report, spec, out, progress=_Progress())
+    click.echo(f"geomgen {__version__}: report of '{Path(spec).name}' written:")
+    click.echo("\n".join(f"  {p}" for p in files))
+    click.echo(f"open {files[0]} in a browser (no network needed)")
+    click.echo("CAUTION: " + CAUTION)
+
+
+@main.command()
 def schema():
     """Print the JSON Schema of the spec (for editors)."""
     import json

@@ -171,6 +171,16 @@ def _lateral(flow, ctx, alpha: float) -> Lateral:
                               yaw_moment_coeff=float(ld["moment"][:, 2].sum()) / (qs * ctx.b_ref)))
 
 
+def pitch_surfaces(models) -> list:
+    """Horizontal wings and stabilizers: the surfaces of the pitch balance (SpecError if none)."""
+    from ..errors import SpecError
+
+    lifting = [m for m in models if m.role in PITCH_ROLES and m.orientation == "horizontal"]
+    if not lifting:
+        raise SpecError("the balance needs at least one horizontal surface with role 'wing' or 'stabilizer'")
+    return lifting
+
+
 def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels: int | None = None,
             alpha_deg: float = 0.0, cg_x_mm: float | None = None, include_vertical: bool | None = None,
             vertical_in_pitch: bool | None = None) -> HydroResult:
@@ -207,10 +217,8 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
     inc_v = include_vertical if include_vertical is not None else bool(fl and fl.include_vertical)
     v_pitch = vertical_in_pitch if vertical_in_pitch is not None else bool(fl and fl.vertical_in_pitch)
     cg = cg_x_mm if cg_x_mm is not None else (fl.weight_x_mm if fl else None)
-    lifting = [m for m in models if m.role in PITCH_ROLES]
-    vertical = [m for m in models if m.role in VERTICAL_ROLES]
-    if not lifting:
-        raise ValueError("no wing or stabilizer to analyse (roles 'wing' or 'stabilizer')")
+    lifting = pitch_surfaces(models)
+    vertical = [m for m in models if m not in lifting]
     pitch_models = lifting + (vertical if v_pitch else [])
     ctx = _context(pitch_models, models)
     lat = build_lattice(pitch_models, ns, nc)
@@ -288,7 +296,7 @@ def neutral_point(models, span_panels: int = DEFAULT_SPAN_PANELS, chord_panels: 
     The same lattice and definition as :func:`analyse` (dCm/dα = 0), without the per-surface
     figures and trim: what the benchmark times.
     """
-    lifting = [m for m in models if m.role in PITCH_ROLES]
+    lifting = pitch_surfaces(models)
     ctx = _context(lifting, models)
     flow = Flow.solve(build_lattice(lifting, span_panels, chord_panels))
     sl = flow.slopes(alpha_deg * DEG, ctx.ref)
@@ -305,6 +313,12 @@ def analyse_spec(spec, **kwargs) -> HydroResult:
     **kwargs
         Passed to :func:`analyse` (panel counts, ``alpha_deg``, ``cg_x_mm``, ...).
     """
+    from ..errors import SpecError
     from ..geometry.model import build_models
 
-    return analyse(build_models(spec), spec.flight, **kwargs)
+    models = build_models(spec)
+    try:
+        return analyse(models, spec.flight, **kwargs)
+    except SpecError as exc:
+        src = getattr(spec, "_source", "<spec>")
+        raise SpecError([f"{src}: surface: {p}" for p in exc.problems]) from None

@@ -1,0 +1,268 @@
+"""The report's one data dict: check records, hydrodynamics and drawing geometry, JSON-able.
+
+Everything the HTML and Markdown pages show, numbers and drawings alike, is read from the
+dict :func:`report_data` returns (and written as ``<set>-report.json``); the renderers never
+compute. Lengths mm, angles deg, areas cm², volumes cm³, forces N and kgf, speeds km/h and
+m/s. Drawing coordinates are in the datum frame (x aft, y starboard, z up) unless a key
+says ``section`` (a section's own frame: x from the leading edge along the chord, z toward
+the upper side), rounded to 0.001 mm.
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+import numpy as np
+
+from .. import CAUTION, __version__
+
+#: Version of the report dict's layout (bump when a key changes meaning).
+REPORT_FORMAT = 1
+
+#: Points per side of a drawn section, samples along a drawn span.
+SECTION_POINTS, SPAN_SAMPLES = 80, 81
+
+#: Figures summarised per part (keys of the check records), in this order.
+MAIN_FIGURES = ("span_mm", "projected_area_cm2", "aspect_ratio", "mac_mm", "mac_y_mm", "mac_le_x_mm",
+                "mac_qc_x_mm", "volume_cm3", "wetted_area_cm2")
+
+
+def _clean(v):
+    """numpy -> Python, nan/inf -> None, tuples -> lists, recursively (strict JSON)."""
+    if isinstance(v, np.ndarray):
+        v = v.tolist()
+    if isinstance(v, np.generic):
+        v = v.item()
+    if isinstance(v, float) and not math.isfinite(v):
+        return None
+    if isinstance(v, dict):
+        return {str(k): _clean(x) for k, x in v.items()}
+    if isinstance(v, (list, tuple)):
+        return [_clean(x) for x in v]
+    return v
+
+
+def _r(a, nd: int = 3) -> list:
+    """Rounded list of a coordinate array (drawings only; table values stay unrounded)."""
+    return np.round(np.asarray(a, float), nd).tolist()
+
+
+def _span_axis(model) -> int:
+    return int(np.argmax(np.abs(model.span_axis)))
+
+
+def _span_samples(model) -> np.ndarray:
+    """Span positions over the whole part, crowded toward the ends, stations included."""
+    lo, hi = model.y_range
+    t = 0.5 * (1.0 - np.cos(np.linspace(0.0, math.pi, SPAN_SAMPLES)))
+    ys = set((lo + (hi - lo) * t).tolist())
+    ys |= {float(v) for v in model.station_breaks} | ({-float(v) for v in model.station_breaks} if model.mirror else set())
+    return np.array(sorted(v for v in ys if lo - 1e-9 <= v <= hi + 1e-9))
+
+
+def _camber(section) -> tuple[float, float]:
+    """(max camber % chord, signed: + toward the upper side; its position % chord)."""
+    x = np.linspace(0.0, 1.0, 2001)
+    yu, yl = section.surfaces_at(x)
+    m = 0.5 * (yu + yl)
+    i = int(np.argmax(np.abs(m)))
+    return 100.0 * float(m[i]), 100.0 * float(x[i])
+
+
+def _outline(model) -> dict:
+    """Projected outline along the span: leading- and trailing-edge x at datum span positions."""
+    ax = _span_axis(model)
+    span, le, te = [], [], []
+    for y in _span_samples(model):
+        p = model.section_loop(float(y), SECTION_POINTS)
+        span.append(float(p[:, ax].mean()))
+        le.append(float(p[:, 0].min()))
+        te.append(float(p[:, 0].max()))
+    le, te = np.array(le), np.array(te)
+    return {"axis": "xyz"[ax], "span_mm": _r(span), "le_x_mm": _r(le), "te_x_mm": _r(te),
+            "quarter_chord_x_mm": _r(le + 0.25 * (te - le))}
+
+
+def _section_shape(model, y: float) -> dict:
+    """A station's finished section in its own frame (mm) with its mean line."""
+    sec = model.section(y)
+    c = float(model.chord(y))
+    loop = sec.loop(SECTION_POINTS) * c
+    x = 0.5 * (1.0 - np.cos(np.linspace(0.0, math.pi, SECTION_POINTS)))
+    yu, yl = sec.surfaces_at(x)
+    return {"x_mm": _r(loop[:, 0]), "z_mm": _r(loop[:, 1]),
+            "mean_x_mm": _r(x * c), "mean_z_mm": _r(0.5 * (yu + yl) * c)}
+
+
+def _stations(model) -> list[dict]:
+    out = []
+    for st, y in zip(model.spec.station, model.planform.y):
+        y = float(y)
+        sec = model.section(y)
+        t, xt = sec.max_thickness()
+        cam, xc = _camber(sec)
+        c = float(model.chord(y))
+        out.append({"y_mm": y, "chord_mm": c, "twist_deg": float(model.planform("twist", y)),
+                    "section": model.base_section(y).label, "thickness_pct": 100.0 * t,
+                    "thickness_mm": t * c, "thickness_at_pct": 100.0 * xt, "camber_pct": cam,
+                    "camber_at_pct": xc, "shape": _section_shape(model, y)})
+    return out
+
+
+def _spanwise(model) -> dict:
+    """Chord and twist from the root to the tip (half span of a mirrored part)."""
+    y0, y1 = float(model.planform.y[0]), model.half_span
+    t = 0.5 * (1.0 - np.cos(np.linspace(0.0, math.pi, SPAN_SAMPLES)))
+    ys = np.unique(np.concatenate([y0 + (y1 - y0) * t, np.asarray(model.station_breaks, float)]))
+    return {"y_mm": _r(ys), "chord_mm": _r(model.chord(ys)), "twist_deg": _r(model.planform("twist", ys), 4)}
+
+
+def _side(model) -> dict:
+    """Side view (x–z): root and tip sections of a horizontal part, true shape; the root chord line."""
+    y0 = 0.0 if model.mirror else float(model.planform.y[0])
+    root = model.section_loop(y0, SECTION_POINTS)
+    tip = model.section_loop(model.half_span, SECTION_POINTS)
+    le, te = model.place(y0, np.array([[0.0, 0.0], [1.0, 0.0]]))  # chord line ends, datum
+    angle = math.degrees(math.atan2(-(te[2] - le[2]), te[0] - le[0]))  # + = leading edge up
+    return {"root_x_mm": _r(root[:, 0]), "root_z_mm": _r(root[:, 2]),
+            "tip_x_mm": _r(tip[:, 0]), "tip_z_mm": _r(tip[:, 2]),
+            "root_chord": {"le_x_mm": float(le[0]), "le_z_mm": float(le[2]), "te_x_mm": float(te[0]),
+                           "te_z_mm": float(te[2]), "angle_deg": angle}}
+
+
+def _top_section(model) -> dict:
+    """Top view (x–y) of a vertical part: its root section, true shape."""
+    p = model.section_loop(float(model.planform.y[0]), SECTION_POINTS)
+    return {"x_mm": _r(p[:, 0]), "y_mm": _r(p[:, 1])}
+
+
+def _mac(model, fig: dict) -> dict:
+    """The MAC as drawn: its length at ȳ from the root, leading edge at the MAC leading-edge x.
+
+    ``span_datum_mm`` lists the datum span coordinates where it is drawn (both halves of a
+    mirrored part) along the part's span axis ``axis``."""
+    ax = _span_axis(model)
+    y = float(model.planform.y[0]) + (fig["mac_y_mm"] or 0.0)
+    pos = [float(model.place(v, np.zeros((1, 2)))[0, ax]) for v in ([y, -y] if model.mirror else [y])]
+    return {"length_mm": fig["mac_mm"], "y_mm": fig["mac_y_mm"], "le_x_mm": fig["mac_le_x_mm"],
+            "qc_x_mm": fig["mac_qc_x_mm"], "axis": "xyz"[ax], "span_datum_mm": pos}
+
+
+def _status(r) -> tuple[str, bool]:
+    """Result word of a check record (marked, not only coloured) and whether it is bad."""
+    if r.fault:
+        return "✗ FAULT " + "+".join(r.fault) + (" and FAIL" if r.verdict == "FAIL" else ""), True
+    if r.verdict == "FAIL":
+        return "✗ FAIL", True
+    if r.verdict == "pass":
+        return "✓ pass", False
+    return "✓ ok", False
+
+
+def _check_section(res) -> dict:
+    from ..check.report import summary_lines
+
+    rows = []
+    for r in res.records:
+        d = r.as_dict()
+        d["status"], d["bad"] = _status(r)
+        rows.append(d)
+    return {"ok": res.ok, "built": res.built, "stl_tol_mm": res.stl_tol,
+            "skin_sampling_mm": max((p["skin_sampling_mm"] for p in res.parts.values()), default=None),
+            "modified_since_written": list(res.modified), "summary": summary_lines(res),
+            "parts": res.parts, "rows": rows}
+
+
+def _balance(hyd: dict | None) -> dict | None:
+    """Neutral point, centre of gravity and trim, plus the few derived numbers the page shows."""
+    if hyd is None:
+        return None
+    ref = hyd["reference"]
+    mast_x, mac = ref.get("mast_x_mm"), ref["mac_mm"]
+    cg = hyd.get("cg_x_mm")
+    pitch = [s["name"] for s in hyd["surfaces"] if s["in_pitch"]]
+    trim = []
+    for t in hyd.get("trim", []):
+        cp = t.get("cp_from_mast_mm")
+        trim.append({**t, "cp_from_mast_pct_mac": (cp / mac * 100.0) if cp is not None else None,
+                     "static_margin_pct": hyd.get("static_margin_pct")})
+    water = hyd.get("water") or {}
+    return {
+        "reference_wing": ref["wing"], "mac_mm": mac, "mac_le_x_mm": ref["mac_le_x_mm"], "area_cm2": ref["area_cm2"],
+        "mast": ref.get("mast"), "mast_x_mm": mast_x, "mast_reference": ref.get("mast_reference"),
+        "moment_point_mm": ref["moment_point_mm"], "alpha_ref_deg": hyd["alpha_ref_deg"],
+        "neutral_point_x_mm": hyd["neutral_point_x_mm"], "neutral_point_pct_mac": hyd["neutral_point_pct_mac"],
+        "neutral_point_from_mast_mm": hyd.get("neutral_point_from_mast_mm"),
+        "neutral_point_from_mast_pct_mac": hyd.get("neutral_point_from_mast_pct_mac"),
+        "cg_x_mm": cg, "cg_from_mast_mm": (cg - mast_x) if cg is not None and mast_x is not None else None,
+        "static_margin_pct": hyd.get("static_margin_pct"), "downwash_gradient": hyd.get("downwash_gradient"),
+        "mass_kg": hyd.get("mass_kg"), "water": water.get("name"), "density_kg_m3": water.get("density"),
+        "pitch_surfaces": pitch, "panels": hyd["panels"]["total"], "trim": trim,
+        "takeoff": hyd.get("takeoff"), "notes": hyd.get("notes", []),
+    }
+
+
+def report_data(spec_path, out_dir, *, progress=None, check_result=None, hydro=None) -> dict:
+    """The report's data: check the written files, analyse the balance, lay out the drawings.
+
+    Parameters
+    ----------
+    spec_path : path of the spec (TOML)
+    out_dir : output folder (built if its outputs are missing or stale)
+    progress : callable(str), optional
+    check_result : CheckResult, optional
+        Reuse a check already run on ``out_dir`` (otherwise :func:`geomgen.check.run.check`
+        runs, without writing its own record).
+    hydro : HydroResult, optional
+        Reuse an analysis (otherwise :func:`geomgen.hydro.analyse_spec` of the spec).
+
+    Returns
+    -------
+    dict
+        JSON-able (no nan): ``spec``, ``caution``, ``surfaces`` (figures, MAC, stations,
+        outlines, spanwise chord and twist, loading), ``check``, ``balance`` and ``hydro``.
+    """
+    from ..check.run import check
+    from ..geometry import build_models
+    from ..hydro import analyse_spec
+    from ..spec import load_spec
+
+    say = progress or (lambda m: None)
+    spec = load_spec(spec_path)
+    models = build_models(spec)
+    res = check_result if check_result is not None else check(spec_path, out_dir, write_record=False,
+                                                                progress=progress)
+    say("analysing the balance (vortex lattice)")
+    if hydro is None and any(m.role in ("wing", "stabilizer") for m in models):
+        hydro = analyse_spec(spec)
+    hyd = _clean(hydro.as_dict()) if hydro is not None else None
+    loading = {s["name"]: s["loading"] for s in (hyd or {}).get("surfaces", [])}
+
+    say("laying out the drawings")
+    surfaces = []
+    for m in models:
+        recs = {r.figure: r for r in res.records if r.part == m.name}
+        fig = {k: recs[k].intended for k in MAIN_FIGURES if k in recs}
+        measured = {k: recs[k].measured for k in MAIN_FIGURES if k in recs}
+        s = {"name": m.name, "role": m.role, "orientation": m.orientation, "mirror": m.mirror,
+             "position_mm": list(m.position), "reference": m.spec.reference, "incidence_deg": m.spec.incidence,
+             "te_thickness_mm": m.spec.te_thickness, "interpolation": m.spec.interpolation,
+             "figures": fig, "measured": measured, "mac": _mac(m, fig), "outline": _outline(m),
+             "stations": _stations(m), "spanwise": _spanwise(m), "loading": loading.get(m.name)}
+        if m.orientation == "horizontal":
+            s["side"] = _side(m)
+        else:
+            s["top_section"] = _top_section(m)
+        surfaces.append(s)
+
+    data = {
+        "report_format": REPORT_FORMAT, "geomgen_version": __version__,
+        "spec": {"name": spec.name, "file": Path(spec_path).name, "datum_origin": spec.datum.origin},
+        "caution": CAUTION,
+        "surfaces": surfaces,
+        "check": _check_section(res),
+        "balance": _balance(hyd),
+        "hydro": hyd,
+    }
+    return _clean(data)
