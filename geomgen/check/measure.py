@@ -7,7 +7,7 @@ from __future__ import annotations
 import numpy as np
 
 from .slices import (Outline, chord_and_thickness, gauss_nodes, planform_figures, root_of, skin_grid,
-                     slice_grid, span_axis_of)
+                     slice_grid, span_axis_of, span_axis_of_grid)
 
 
 def _direction(root: float, tip: float) -> float:
@@ -19,8 +19,8 @@ def measure_step_solid(ms, stations=()) -> dict:
 
     Returns ``{"figures": {...}, "stations": [...], "sampling_mm": bound}``.
     """
-    axis = span_axis_of(ms.bbox_min, ms.bbox_max)
     grid, dev = skin_grid(ms.skin)
+    axis = span_axis_of_grid(grid)
     lo, hi = float(ms.bbox_min[axis]), float(ms.bbox_max[axis])
     eps = 1e-7 * (hi - lo)
 

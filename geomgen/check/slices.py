@@ -29,6 +29,13 @@ def span_axis_of(bbox_min, bbox_max) -> int:
     return 1 if ext[1] >= ext[2] else 2
 
 
+def span_axis_of_grid(grid: np.ndarray) -> int:
+    """Span axis of a skin sample grid (nu, nv, 3): the datum axis (y or z) that stays
+    constant along the chordwise curves (the skin's sections are planar across the span)."""
+    spread = [np.ptp(grid[:, :, k], axis=0).mean() / max(np.ptp(grid[:, :, k]), 1e-12) for k in (1, 2)]
+    return 1 if spread[0] <= spread[1] else 2
+
+
 def gauss_nodes(a: float, b: float) -> tuple[np.ndarray, np.ndarray]:
     """Composite Gauss nodes on [a, b], sub-intervals crowded toward both ends (sine map)."""
     t = 0.5 * (1 - np.cos(np.linspace(0, np.pi, INTERVALS + 1)))

@@ -71,6 +71,31 @@ def _segments_cross(p: np.ndarray) -> bool:
     return bool((hit & ~adjacent).any())
 
 
+def _bulges(model: SurfaceModel) -> list[str]:
+    """A smooth curve through close or uneven stations can swing far outside its station
+    values. Refuse a chord, offset or twist that leaves the band of its two neighbouring
+    station values widened by half their difference plus 10 % of the largest chord (2° for
+    twist): the part would not be what the table of stations says."""
+    pf = model.planform
+    ys = pf.y
+    cref = max(float(v) for v in pf("chord", ys))
+    for name, unit, slack in (("chord", "mm", 0.1 * cref), ("x", "mm", 0.1 * cref),
+                              ("z", "mm", 0.1 * cref), ("twist", "deg", 2.0)):
+        vals = pf(name, ys)
+        for i in range(len(ys) - 1):
+            q = np.linspace(ys[i], ys[i + 1], 60)
+            v = pf(name, q)
+            lo, hi = min(vals[i], vals[i + 1]), max(vals[i], vals[i + 1])
+            m = 0.5 * (hi - lo) + slack
+            worst = float(v[np.argmax(np.maximum(v - hi, lo - v))])
+            if worst > hi + m or worst < lo - m:
+                return [f'surface "{model.name}": smooth interpolation swings {name} to {worst:.1f} {unit} between '
+                        f"station[{i}] (y={ys[i]:g}) and station[{i + 1}] (y={ys[i + 1]:g}), whose values are "
+                        f"{vals[i]:.1f} and {vals[i + 1]:.1f} {unit}; add stations, space them more evenly, "
+                        "or use linear interpolation"]
+    return []
+
+
 def check_geometry(model: SurfaceModel, where) -> list[str]:
     """Geometry that cannot be made: chord <= 0 between stations, a section that crosses itself.
 
@@ -85,6 +110,10 @@ def check_geometry(model: SurfaceModel, where) -> list[str]:
         out.append(f'surface "{model.name}": the smooth chord curve through the stations drops to '
                    f"{chords.min():.1f} mm at y = {y:.1f} mm; add a station there or use linear interpolation")
         return out
+    if model.spec.interpolation == "smooth":
+        out += _bulges(model)
+        if out:
+            return out
     for y in where:
         loop = model.section(y).loop(48)
         if _segments_cross(loop):

@@ -198,5 +198,20 @@ class SurfaceModel:
             th = np.linspace(ta, tc, n)
             y = b * np.sin(th)
             y[0], y[-1] = a, c
-            segs.append(y)
+            segs.append(self._with_stations(y, a, c))
         return segs
+
+    def _with_stations(self, y: np.ndarray, a: float, c: float) -> np.ndarray:
+        """Smooth interpolation crosses stations inside a segment: put a loft section on each
+        and at least two between neighbours, so the skin follows the spline's pieces."""
+        st = [float(v) for v in self.planform.y]
+        inner = [v for v in st + [-v for v in st] if min(a, c) + 1e-9 < v < max(a, c) - 1e-9]
+        if not inner:
+            return y
+        knots = sorted({a, c, *inner}, reverse=c < a)
+        extra = []
+        for p, q in zip(knots[:-1], knots[1:]):
+            extra += list(np.linspace(p, q, 4)[1:-1])
+        pts = np.array(sorted(set(np.round(np.concatenate([y, inner, extra]), 9)), reverse=c < a))
+        keep = np.concatenate([[True], np.abs(np.diff(pts)) > 0.05])  # no near-duplicate sections
+        return pts[keep]
