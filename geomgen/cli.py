@@ -182,6 +182,21 @@ def report(spec, out_dir):
 
 
 @main.command()
+@click.argument("spec", type=click.Path(dir_okay=False))
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
+              help="output folder [default: out/<spec name>]")
+def parts(spec, out_dir):
+    """Shop parts of SPEC from its [surface.mount], [surface.printing] and [surface.laminate]
+    tables: the part with mounting pad and bolt holes, incidence shims, printable pieces with
+    locators and spar channels (STL and 3MF), cores and two-half moulds. Every solid is
+    checked before anything is written."""
+    from .cad.shop import format_parts_summary, write_shop_parts
+
+    out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
+    click.echo(format_parts_summary(_run(write_shop_parts, spec, out, progress=_Progress())))
+
+
+@main.command()
 def schema():
     """Print the JSON Schema of the spec (for editors)."""
     import json

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from typing import Annotated, Optional
 
-from pydantic import BaseModel, ConfigDict, Field, field_validator
+from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator
 
 #: Default chord positions of the offset table, % chord: the classic table spacing, dense
 #: at the nose where the shape changes fastest (common practice, no source).
@@ -53,7 +53,7 @@ class ShopSpec(BaseModel):
         description="chord positions of the offset table, % of the local chord from the leading edge")
 
     # -- hot-wire profiles ----------------------------------------------------------
-    hotwire: bool = Field(True, description="write hot-wire profiles for foam-core panels")
+    hotwire: StrictBool = Field(True, description="write hot-wire profiles for foam-core panels")
     hotwire_cuts: Optional[list[SpanPos]] = Field(
         None, min_length=2,
         description="span positions where the half span is cut into foam panels, mm from the root, "

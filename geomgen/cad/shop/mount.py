@@ -1,0 +1,53 @@
+"""Mounting interface solids: the part with its pad and holes (datum frame) and the shims."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ...errors import GeometryError
+from ...shop3d.mount import plan_mount, plan_shims
+from ..loft import volume_mm3
+from .kernel import checked, cut, cut_features, prepared, prism
+from .mesh import mesh
+from .output import Output
+
+
+def mount_outputs(model, solid, spec, stem: str, say) -> tuple[list[Output], dict, list]:
+    """Outputs of ``[surface.mount]``: ``<stem>-mount.step`` and each shim's STL and STEP.
+
+    Returns (outputs, report, tools) - the tools so that printing can cut the same features."""
+    ms = model.spec.mount
+    plan = plan_mount(model, ms)
+    shims, p2 = plan_shims(model, ms, spec)
+    if plan.problems or p2:
+        raise GeometryError("; ".join(plan.problems + p2) + "; nothing was written")
+    say(f"cutting the mount of {model.name}")
+    what = f'surface "{model.name}" mount'
+    mounted, removed, v0, v1 = cut_features(prepared(solid, what), plan.tools, what)
+    if abs(v0 - v1 - removed) > 1e-3 * v0:
+        raise GeometryError(f"{what}: the cut part ({v1:.0f} mm³) and the removed features ({removed:.0f} mm³) do "
+                            f"not add up to the part ({v0:.0f} mm³); nothing was written")
+    rep = dict(plan.report)
+    rep.update(volume_mm3=v1, removed_mm3=removed, file=f"{stem}-mount.step", shims=[])
+    outs = [Output(f"{stem}-mount.step", "step", [(f"{model.name}-mount", mounted)])]
+    for i, sh in enumerate(shims):
+        W = sh.width
+        poly = np.array([[0, -0.5 * W, 0], [sh.length, -0.5 * W, 0], [sh.length, -0.5 * W, sh.t_aft],
+                         [0, -0.5 * W, sh.t_fore]])
+        wedge = prism(poly, (0, W, 0))
+        from ...shop3d.frame import Tool
+
+        h = max(sh.t_fore, sh.t_aft) + 2.0
+        holes = [Tool("cylinder", (x, y, -1.0), (0, 0, 1), h, radius=r) for x, y, r in sh.holes]
+        if sh.notch:
+            holes.append(Tool("cylinder", (sh.notch[0], sh.notch[1], -1.0), (0, 0, 1), h, radius=sh.notch[2]))
+        wn = f"{what} shim[{i}]"
+        body = cut(checked(wedge, wn)[0], holes, wn)
+        v, f = mesh(body, 0.02, wn)
+        name = f"{stem}-{sh.slug}"
+        outs += [Output(f"{name}.stl", "stl", [(f"{model.name}-{sh.slug}", body)], meshes=[(sh.slug, v, f)]),
+                 Output(f"{name}.step", "step", [(f"{model.name}-{sh.slug}", body)])]
+        rep["shims"].append({"angle": sh.angle, "label": sh.label, "words": sh.words, "length": sh.length,
+                             "width": W, "t_fore": sh.t_fore, "t_aft": sh.t_aft, "holes": len(sh.holes),
+                             "files": [f"{name}.stl", f"{name}.step"], "volume_mm3": volume_mm3(body)})
+    return outs, rep, plan.tools
