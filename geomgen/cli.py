@@ -70,14 +70,16 @@ def main(ctx, allow_outside_files):
 @click.option("--stl-tol", type=click.FloatRange(min=0.001, max=5.0), default=None,
               help="STL chordal deviation from the B-spline surface, mm [default 0.05]")
 @click.option("--no-stl", is_flag=True, help="write STEP only")
-def build(spec, out_dir, stl_tol, no_stl):
+@click.option("--3mf", "with_3mf", is_flag=True, help="also write a 3MF (mm) of each part's mesh")
+def build(spec, out_dir, stl_tol, no_stl, with_3mf):
     """Build every surface of SPEC: a STEP solid and a binary STL per part, plus an
     assembly STEP with every part named."""
     from . import defaults
     from .build import build as do_build
 
     out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
-    res = _run(do_build, spec, out, formats=("step",) if no_stl else ("step", "stl"),
+    formats = ("step",) if no_stl else ("step", "stl")
+    res = _run(do_build, spec, out, formats=formats + (("3mf",) if with_3mf else ()),
                stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM, progress=_Progress(),
                allow_outside_files=_outside())
     click.echo(format_build_summary(res))

@@ -96,3 +96,25 @@ def test_schema_is_json_schema():
     res = CliRunner().invoke(main, ["schema"])
     schema = json.loads(res.output)
     assert schema["type"] == "object" and "surface" in schema["properties"]
+
+
+def test_optional_3mf_holds_the_same_mesh_in_millimetres(tmp_path, write_spec):
+    """3MF (3D Manufacturing Format core spec): a zip whose model part says unit="millimeter";
+    its mesh encloses the same volume as the STL written beside it."""
+    import zipfile
+    import xml.etree.ElementTree as ET
+
+    import numpy as np
+    import trimesh
+
+    out = tmp_path / "o"
+    r = CliRunner().invoke(main, ["build", str(write_spec(wing_spec(te=0.5))), "-o", str(out), "--3mf"])
+    assert r.exit_code == 0, r.output
+    with zipfile.ZipFile(out / "t-w.3mf") as z:
+        root = ET.fromstring(z.read("3D/3dmodel.model"))
+    assert root.get("unit") == "millimeter"
+    ns = {"m": root.tag.split("}")[0][1:]}
+    v = np.array([[float(e.get(k)) for k in "xyz"] for e in root.iterfind(".//m:vertex", ns)])
+    f = np.array([[int(e.get(k)) for k in ("v1", "v2", "v3")] for e in root.iterfind(".//m:triangle", ns)])
+    stl = trimesh.load(out / "t-w.stl", force="mesh")
+    assert trimesh.Trimesh(v, f).volume == pytest.approx(stl.volume, rel=1e-5)

@@ -122,8 +122,17 @@ def write_stl(parts, path: Path, options: dict) -> None:
         raise ExportError(f"{path}: cannot write STL: {exc.strerror or exc}") from None
 
 
+def write_3mf(parts, path: Path, options: dict) -> None:
+    """3MF package (unit millimetre) of the same meshes as the STL, one object per part."""
+    from ..shop3d.threemf import write_3mf as write_package
+
+    tol = options.get("stl_tol", defaults.STL_LINEAR_TOL_MM)
+    write_package([(p.name, *p.mesh(tol)) for p in parts], path, title=options.get("assembly_name", ""))
+
+
 #: format name -> (file suffix, writer)
 EXPORTERS = {
     "step": (".step", write_step),
     "stl": (".stl", write_stl),
+    "3mf": (".3mf", write_3mf),
 }
