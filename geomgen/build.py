@@ -10,10 +10,10 @@ from typing import Callable
 
 import numpy as np
 
-from . import __version__, defaults
+from . import defaults
 from .geometry import SurfaceModel, build_models
 from .geometry.figures import Figures, intended_figures
-from .geometry.skin import Skin, build_skin
+from .geometry.skin import Skin
 from .geometry.tessellate import tessellate
 from .sections.base import Section
 from .spec import load_spec
@@ -75,10 +75,15 @@ def output_names(spec_name: str, part_names, formats=("step", "stl"), assembly: 
     """File names a build writes."""
     from .cad.export import EXPORTERS
 
-    names = [f"{spec_name}-{p}{EXPORTERS[f][0]}" for p in part_names for f in formats]
+    names = [part_file(spec_name, p, EXPORTERS[f][0]) for p in part_names for f in formats]
     if assembly and "step" in formats and len(part_names) > 1:
-        names.append(f"{spec_name}-assembly.step")
+        names.append(part_file(spec_name, "assembly", ".step"))
     return names
+
+
+def part_file(spec_name: str, part: str, suffix: str) -> str:
+    """The one naming rule of build outputs: ``<set>-<part><suffix>``."""
+    return f"{spec_name}-{part}{suffix}"
 
 
 def build(spec_path, out_dir, *, formats=("step", "stl"), stl_tol: float = defaults.STL_LINEAR_TOL_MM,
@@ -105,12 +110,12 @@ def build(spec_path, out_dir, *, formats=("step", "stl"), stl_tol: float = defau
         for p, res in zip(parts, results):
             for fmt in formats:
                 suffix, writer = EXPORTERS[fmt]
-                fname = f"{spec.name}-{p.name}{suffix}"
+                fname = part_file(spec.name, p.name, suffix)
                 say(f"writing {fname}")
                 writer([p], stage.path(fname), opts)
                 res.files.append(Path(out_dir) / fname)
         if assembly and "step" in formats and len(parts) > 1:
-            fname = f"{spec.name}-assembly.step"
+            fname = part_file(spec.name, "assembly", ".step")
             say(f"writing {fname}")
             EXPORTERS["step"][1](parts, stage.path(fname), opts)
         files = stage.commit(build_info(spec_path, stl_tol))
