@@ -120,7 +120,7 @@ def check(spec, out_dir, rebuild, stl_tol, as_json):
     """
     import json
 
-    from .check.report import format_terminal
+    from .check.text import format_terminal
     from .check.run import check as do_check
 
     from . import defaults
@@ -159,7 +159,7 @@ def balance(spec, cg_x, sideslip, as_json):
 def drawings(spec, out_dir):
     """Shaper's drawings of SPEC: 1:1 section templates (DXF and SVG with scale rulers),
     offset tables (CSV) and hot-wire profiles with matching point counts."""
-    from .shop import format_shop_summary, write_shop_drawings
+    from .drawings import format_shop_summary, write_shop_drawings
 
     out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
     click.echo(format_shop_summary(_run(write_shop_drawings, spec, out, progress=_Progress())))
@@ -192,7 +192,7 @@ def parts(spec, out_dir):
     tables: the part with mounting pad and bolt holes, incidence shims, printable pieces with
     locators and spar channels (STL and 3MF), cores and two-half moulds. Every solid is
     checked before anything is written."""
-    from .cad.shop import format_parts_summary, write_shop_parts
+    from .parts import format_parts_summary, write_shop_parts
 
     out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
     click.echo(format_parts_summary(_run(write_shop_parts, spec, out, progress=_Progress())))

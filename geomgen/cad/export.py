@@ -124,7 +124,7 @@ def write_stl(parts, path: Path, options: dict) -> None:
 
 def write_3mf(parts, path: Path, options: dict) -> None:
     """3MF package (unit millimetre) of the same meshes as the STL, one object per part."""
-    from ..shop3d.threemf import write_3mf as write_package
+    from .threemf import write_3mf as write_package
 
     tol = options.get("stl_tol", defaults.STL_LINEAR_TOL_MM)
     write_package([(p.name, *p.mesh(tol)) for p in parts], path, title=options.get("assembly_name", ""))

@@ -91,7 +91,7 @@ def measure_solid(name: str, solid) -> MeasuredSolid:
         exp.Next()
     skin = skin_of(max(faces, key=_pole_count))
     # extents of the skin (the end sections are its boundary curves, so this is the span)
-    from ..check.slices import skin_grid
+    from ..geometry.slices import skin_grid
 
     grid, _ = skin_grid(skin, per_span=2)
     pts = grid.reshape(-1, 3)

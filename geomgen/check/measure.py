@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .slices import (Outline, chord_and_thickness, gauss_nodes, planform_figures, root_of, skin_grid,
+from ..geometry.slices import (Outline, chord_and_thickness, gauss_nodes, planform_figures, root_of, skin_grid,
                      slice_grid, span_axis_of, span_axis_of_grid)
 
 

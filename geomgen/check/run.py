@@ -108,7 +108,7 @@ def check(spec_path, out_dir=None, *, rebuild: bool = False, stl_tol: float = de
         res.balance = analyse(models, spec.flight).as_dict()
     if write_record:
         from ..outputs import Staging
-        from .report import format_markdown
+        from .text import format_markdown
 
         with Staging(out) as stage:
             stage.path(f"{spec.name}-check.md").write_text(format_markdown(res))

@@ -4,7 +4,7 @@ Pure numpy/scipy (no CAD kernel). Entry points: :func:`analyse` and :func:`forma
 """
 
 from .analysis import analyse, analyse_spec, neutral_point
-from .report import format_hydro
+from .text import format_hydro
 from .results import HydroResult, Lateral, Loading, SurfaceHydro, Takeoff, TrimPoint
 from .water import G, ITTC_2011, Water, water
 

@@ -161,7 +161,7 @@ def _status(r) -> tuple[str, bool]:
 
 
 def _check_section(res) -> dict:
-    from ..check.report import summary_lines
+    from ..check.text import summary_lines
 
     rows = []
     for r in res.records:

@@ -14,8 +14,8 @@ from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator, 
 from .. import defaults
 from ..sections.naca import parse_designation
 from .flight import FlightSpec
-from .shop2d import ShopSpec
-from .shop3d import LaminateSpec, MountSpec, PrintingSpec
+from .drawings import ShopSpec
+from .parts import LaminateSpec, MountSpec, PrintingSpec
 
 
 class _Strict(BaseModel):

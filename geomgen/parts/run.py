@@ -12,9 +12,9 @@ import time
 from pathlib import Path
 from typing import Callable
 
-from ... import __version__
-from ...errors import SpecError
-from ...shop3d.summary import format_parts_summary
+from .. import __version__
+from ..errors import SpecError
+from .summary import format_parts_summary
 
 __all__ = ["ShopParts", "write_shop_parts", "format_parts_summary"]
 
@@ -38,12 +38,12 @@ def write_shop_parts(spec_path, out_dir, *, progress: Callable[[str], None] | No
 
     Raises SpecError (exit 2), GeometryError or ExportError (exit 3); nothing is written then.
     """
-    from ...build import Part
-    from ...geometry import build_models
-    from ...outputs import Staging, spec_digest
-    from ...spec import load_spec
+    from ..build import Part
+    from ..geometry import build_models
+    from ..outputs import Staging, spec_digest
+    from ..spec import load_spec
     from .laminate import laminate_outputs
-    from .mount import mount_outputs
+    from .mount_solids import mount_outputs
     from .pieces import print_outputs
 
     t0 = time.perf_counter()

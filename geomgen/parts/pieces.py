@@ -9,13 +9,13 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...errors import GeometryError
-from ...shop3d.frame import Frame, Tool
-from ...shop3d.mount import plan_mount
-from ...shop3d.printing import choose_pose, plan_printing, printing_model
-from ..loft import solid_from_skin, volume_mm3
-from .kernel import bbox, common, cut_features, make_tool, prepared, sub_skin, transformed
-from .mesh import mesh
+from ..errors import GeometryError
+from .frame import Frame, Tool
+from .mount import plan_mount
+from .printing import choose_pose, plan_printing, printing_model
+from ..cad.loft import solid_from_skin, volume_mm3
+from ..cad.ops import bbox, common, cut_features, make_tool, prepared, sub_skin, transformed
+from ..cad.mesh import mesh
 from .output import Output
 
 
@@ -161,7 +161,7 @@ def _joint_test(pm, plan, pieces, F, stem, what, rep) -> list[Output]:
         lo, hi = bbox(posed)
         dx = (x - lo[0]) if k else 0.0
         if k:
-            from .kernel import transformed as tr
+            from ..cad.ops import transformed as tr
 
             posed = tr(posed, np.eye(3), (dx, 0.0, 0.0), tw)
         x = bbox(posed)[1][0] + 10.0

@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..geometry.skin import Skin
+from .skin import Skin
 
 GAUSS = 4
 INTERVALS = 40

@@ -11,7 +11,7 @@ from OCP.TopLoc import TopLoc_Location
 from OCP.TopoDS import TopoDS
 from OCP.TopTools import TopTools_IndexedMapOfShape
 
-from ...errors import ExportError
+from ..errors import ExportError
 
 
 def mesh(shape, tol: float, what: str, angle: float = 0.5) -> tuple[np.ndarray, np.ndarray]:

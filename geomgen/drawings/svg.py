@@ -4,7 +4,7 @@ The sheet's ``width``/``height`` are given in mm and its ``viewBox`` in the same
 one user unit is one millimetre on paper when printed at 100 % ("actual size"). A 100 mm
 ruler (x) and a 50 mm ruler (y), both with 10 mm ticks, sit at the top left: measure
 them on the print to catch a printer's scaling. Same layout and content as the DXF
-(:mod:`geomgen.shop.templates`), plus the rulers and a footer with the caution.
+(:mod:`geomgen.drawings.templates`), plus the rulers and a footer with the caution.
 """
 
 from __future__ import annotations

@@ -7,7 +7,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ...errors import ExportError
+from ..errors import ExportError
 
 
 @dataclass
@@ -29,11 +29,11 @@ class Output:
 
     def write(self, path: Path) -> None:
         if self.fmt == "step":
-            from ..export import write_step
+            from ..cad.export import write_step
 
             write_step([_Named(n, s) for n, s in self.bodies], path, {"assembly_name": Path(self.name).stem})
         elif self.fmt == "stl":
-            from ..export import stl_bytes
+            from ..cad.export import stl_bytes
 
             off, vs, fs = 0, [], []
             for _, v, f in self.meshes:
@@ -45,7 +45,7 @@ class Output:
             except OSError as exc:
                 raise ExportError(f"{path}: cannot write STL: {exc.strerror or exc}") from None
         elif self.fmt == "3mf":
-            from ...shop3d.threemf import write_3mf
+            from ..cad.threemf import write_3mf
 
             write_3mf(self.meshes, path, self.title or Path(self.name).stem)
         else:  # pragma: no cover

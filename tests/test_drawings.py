@@ -22,8 +22,8 @@ from geomgen.geometry import build_models
 from geomgen.outputs import MANIFEST, read_manifest
 from geomgen.sections import naca
 from geomgen.sections.base import cosine_s
-from geomgen.shop import format_shop_summary, hotwire, svg, write_shop_drawings
-from geomgen.shop.hotwire import offset_loop, section_wire_path
+from geomgen.drawings import format_shop_summary, hotwire, svg, write_shop_drawings
+from geomgen.drawings.hotwire import offset_loop, section_wire_path
 from geomgen.spec import load_spec
 
 from conftest import DEMO, ROOT, wing_spec
@@ -314,7 +314,7 @@ class Block:
         if name.split('.')[0] in ('cadquery', 'OCP'):
             raise ImportError('kernel blocked: ' + name)
 sys.meta_path.insert(0, Block())
-from geomgen.shop import write_shop_drawings
+from geomgen.drawings import write_shop_drawings
 files = write_shop_drawings({str(spec)!r}, {str(tmp_path / "out")!r})
 assert not any(m.split('.')[0] in ('cadquery', 'OCP') for m in sys.modules)
 print(len(files))

@@ -1,6 +1,6 @@
 """Section templates at 1:1: the sheet layout shared by the DXF and the SVG, and the DXF writer.
 
-Every template is drawn in its section's chord frame (see :mod:`geomgen.shop.common`):
+Every template is drawn in its section's chord frame (see :mod:`geomgen.drawings.common`):
 chord line along +x with the leading edge at x = 0, the upper side up, true size in mm.
 Templates are stacked down the sheet, the root on top; the DXF moves each one only along
 y, so its x coordinates are the chord frame's own. Each template carries its chord line,

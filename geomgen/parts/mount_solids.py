@@ -4,11 +4,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...errors import GeometryError
-from ...shop3d.mount import plan_mount, plan_shims
-from ..loft import volume_mm3
-from .kernel import checked, cut, cut_features, prepared, prism
-from .mesh import mesh
+from ..errors import GeometryError
+from .mount import plan_mount, plan_shims
+from ..cad.loft import volume_mm3
+from ..cad.ops import checked, cut, cut_features, prepared, prism
+from ..cad.mesh import mesh
 from .output import Output
 
 
@@ -35,7 +35,7 @@ def mount_outputs(model, solid, spec, stem: str, say) -> tuple[list[Output], dic
         poly = np.array([[0, -0.5 * W, 0], [sh.length, -0.5 * W, 0], [sh.length, -0.5 * W, sh.t_aft],
                          [0, -0.5 * W, sh.t_fore]])
         wedge = prism(poly, (0, W, 0))
-        from ...shop3d.frame import Tool
+        from .frame import Tool
 
         h = max(sh.t_fore, sh.t_aft) + 2.0
         holes = [Tool("cylinder", (x, y, -1.0), (0, 0, 1), h, radius=r) for x, y, r in sh.holes]

@@ -128,7 +128,7 @@ def test_schema_describes_the_shop_tables_with_units():
 
 # -- plans (numpy, no kernel) ----------------------------------------------------------
 def test_pad_through_the_far_skin_is_refused_naming_surface_and_feature():
-    from geomgen.shop3d.mount import plan_mount
+    from geomgen.parts.mount import plan_mount
 
     m = models()["wing"]
     ms = m.spec.mount.model_copy(update={"pad_z": -37.0})
@@ -138,7 +138,7 @@ def test_pad_through_the_far_skin_is_refused_naming_surface_and_feature():
 
 
 def test_thin_wall_under_an_insert_is_refused_with_the_wall_left():
-    from geomgen.shop3d.mount import plan_mount
+    from geomgen.parts.mount import plan_mount
 
     m = models()["wing"]
     hole = m.spec.mount.hole[0].model_copy(update={"depth": 15.0})
@@ -147,7 +147,7 @@ def test_thin_wall_under_an_insert_is_refused_with_the_wall_left():
     assert 'surface "wing" mount hole[0] (x=-100, y=0): the insert hole leaves' in msg
     assert "less than min_wall = 2 mm" in msg
     # the reported wall is the lower skin's distance below the hole bottom, from the model's section
-    from geomgen.shop3d.frame import line_crossings, section_datum_xz
+    from geomgen.parts.frame import line_crossings, section_datum_xz
 
     lo, _ = line_crossings(section_datum_xz(m, 0.0), [-100.0])
     rec = plan.report["holes"][0]
@@ -158,9 +158,9 @@ def test_thin_wall_under_an_insert_is_refused_with_the_wall_left():
 def test_pad_on_the_lower_skin_measures_toward_the_upper_skin():
     """Signs for a part sitting on the fuselage: the pad cuts the lower skin, the insert pocket
     enters from below, the counterbore sits on the upper skin."""
-    from geomgen.shop3d.frame import line_crossings, section_datum_xz
-    from geomgen.shop3d.mount import plan_mount
-    from geomgen.spec.shop3d import MountSpec
+    from geomgen.parts.frame import line_crossings, section_datum_xz
+    from geomgen.parts.mount import plan_mount
+    from geomgen.spec.parts import MountSpec
 
     m = models()["wing"]
     ms = MountSpec(side="lower", pad_z=-35.5, pad_x=(-115, -60), pad_width=40,
@@ -178,7 +178,7 @@ def test_pad_on_the_lower_skin_measures_toward_the_upper_skin():
 
 
 def test_spar_channel_leaving_the_skin_is_refused():
-    from geomgen.shop3d.printing import plan_spars
+    from geomgen.parts.printing import plan_spars
 
     m = models()["wing"]
     ps = m.spec.printing
@@ -194,8 +194,8 @@ def test_spar_channel_leaving_the_skin_is_refused():
 def test_spar_wall_matches_a_dense_skin_measurement():
     """The reported least wall of the channel is re-measured on the B-spline skin itself
     (dense sampling at the reported span), not on the model's section polygon."""
-    from geomgen.shop3d.frame import Frame
-    from geomgen.shop3d.printing import plan_spars
+    from geomgen.parts.frame import Frame
+    from geomgen.parts.printing import plan_spars
 
     m = models()["wing"]
     ps = m.spec.printing
@@ -213,8 +213,8 @@ def test_spar_wall_matches_a_dense_skin_measurement():
 
 
 def test_shim_words_explain_the_sign():
-    from geomgen.shop3d.mount import plan_shims
-    from geomgen.spec.shop3d import MountSpec
+    from geomgen.parts.mount import plan_shims
+    from geomgen.spec.parts import MountSpec
 
     spec = load_spec_text(SPEC)
     ms = {m.name: m for m in build_models(spec)}
@@ -237,9 +237,9 @@ def test_shim_words_give_the_trim_change_from_the_hydrodynamics():
     lattice: a stabilizer leading edge down pushes the tail down, so the board rides nose-up
     and the weight must move forward (the same sign as the decalage rule of thumb)."""
     from conftest import DEMO
-    from geomgen.shop3d.mount import plan_shims
+    from geomgen.parts.mount import plan_shims
     from geomgen.spec import load_spec
-    from geomgen.spec.shop3d import MountSpec
+    from geomgen.spec.parts import MountSpec
 
     spec = load_spec(DEMO)
     stab = build_models(spec)[1]
@@ -250,7 +250,7 @@ def test_shim_words_give_the_trim_change_from_the_hydrodynamics():
 
 
 def test_automatic_split_fits_the_build_volume_and_keeps_the_mount_in_one_piece():
-    from geomgen.shop3d.printing import extents_local, plan_printing, printing_model
+    from geomgen.parts.printing import extents_local, plan_printing, printing_model
 
     m = models()["wing"]
     ps = m.spec.printing
@@ -268,7 +268,7 @@ def test_automatic_split_fits_the_build_volume_and_keeps_the_mount_in_one_piece(
 
 
 def test_trailing_edge_thicker_than_the_section_allows_is_refused():
-    from geomgen.shop3d.printing import printing_model
+    from geomgen.parts.printing import printing_model
 
     m = models()["wing"]
     _, problems = printing_model(m, m.spec.printing.model_copy(update={"min_te": 6.0}))
@@ -276,7 +276,7 @@ def test_trailing_edge_thicker_than_the_section_allows_is_refused():
 
 
 def test_threemf_package_in_millimetres():
-    from geomgen.shop3d.threemf import write_3mf
+    from geomgen.cad.threemf import write_3mf
 
     v = np.array([[0, 0, 0], [10, 0, 0], [0, 10, 0], [0, 0, 10]], float)
     f = np.array([[0, 2, 1], [0, 1, 3], [0, 3, 2], [1, 2, 3]])
@@ -316,7 +316,7 @@ def mesh_volume(v, f):
 
 @pytest.fixture(scope="module")
 def shop(tmp_path_factory):
-    from geomgen.cad.shop import write_shop_parts
+    from geomgen.parts import write_shop_parts
 
     out = tmp_path_factory.mktemp("shop")
     spec = out / "tw.toml"
@@ -421,7 +421,7 @@ def test_reported_walls_match_measurements_of_the_written_part(shop):
 @pytest.mark.slow
 def test_piece_volumes_and_removed_features_add_up_to_the_whole(shop):
     from geomgen.cad.loft import solid_from_skin, volume_mm3
-    from geomgen.shop3d.printing import printing_model
+    from geomgen.parts.printing import printing_model
 
     p = shop.report["surfaces"][0]["printing"]
     s = p["scale"]
@@ -516,7 +516,7 @@ def test_core_lies_a_laminate_inside_the_skin(shop):
 def test_mould_halves_add_up_to_the_part_and_lie_in_the_machining_pose(shop):
     from geomgen.build import Part
     from geomgen.cad.loft import volume_mm3
-    from geomgen.shop3d.mould import chord_points
+    from geomgen.parts.mould import chord_points
 
     m = models()["wing"]
     whole = volume_mm3(Part(m).solid)
@@ -530,7 +530,7 @@ def test_mould_halves_add_up_to_the_part_and_lie_in_the_machining_pose(shop):
         lem, tem = (T[:3, :3] @ p + T[:3, 3] for p in (le, te))
         assert np.allclose(lem, 0.0, atol=1e-6)  # root leading edge at the machine origin
         assert abs(tem[0]) < 1e-6 and abs(tem[2]) < 1e-6 and tem[1] > 140  # chord along +Y on the XY plane
-        from geomgen.cad.shop.kernel import bbox
+        from geomgen.cad.ops import bbox
 
         bmin, bmax = bbox(solid)
         assert bmax[2] > 5 and bmin[2] < -9.9  # outside up, flange plate below the parting plane
@@ -539,7 +539,7 @@ def test_mould_halves_add_up_to_the_part_and_lie_in_the_machining_pose(shop):
 
 @pytest.mark.slow
 def test_summary_names_the_files_the_shims_and_the_caution(shop):
-    from geomgen.cad.shop import format_parts_summary
+    from geomgen.parts import format_parts_summary
 
     text = format_parts_summary(shop)
     assert "tw-wing-shim-minus0.5deg.stl" in text and "thick end forward" in text
@@ -551,7 +551,7 @@ def test_summary_names_the_files_the_shims_and_the_caution(shop):
 
 @pytest.mark.slow
 def test_refused_geometry_writes_nothing(tmp_path):
-    from geomgen.cad.shop import write_shop_parts
+    from geomgen.parts import write_shop_parts
 
     spec = tmp_path / "bad.toml"
     spec.write_text(SPEC.replace("pad_z = -20.0", "pad_z = -37.0"))

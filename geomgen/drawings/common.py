@@ -16,7 +16,7 @@ from functools import cached_property
 import numpy as np
 
 from ..sections.base import Section
-from ..spec.shop2d import ShopSpec
+from ..spec.drawings import ShopSpec
 
 #: Positions closer than this are the same position, mm.
 SAME_Y_MM = 1e-6

@@ -17,9 +17,9 @@ from OCP.TopExp import TopExp_Explorer
 from OCP.TopoDS import TopoDS, TopoDS_Shape
 from OCP.TopTools import TopTools_ListOfShape
 
-from ... import defaults
-from ...errors import GeometryError
-from ..loft import bspline_surface, volume_mm3
+from .. import defaults
+from ..errors import GeometryError
+from .loft import bspline_surface, volume_mm3
 
 _P = lambda v: gp_Pnt(*map(float, v))
 _D = lambda v: gp_Dir(*map(float, v))
@@ -42,7 +42,7 @@ def prepared(solid, what: str):
 
 
 def make_tool(tool, turn: float = 0.0) -> TopoDS_Shape:
-    """OCP solid of a :class:`geomgen.shop3d.frame.Tool`; ``turn`` (deg) rotates the seam of a
+    """OCP solid of a :class:`geomgen.parts.frame.Tool`; ``turn`` (deg) rotates the seam of a
     cylinder or cone about its axis (the solid is the same)."""
     if tool.kind in ("cylinder", "cone"):
         a = np.asarray(tool.axis, float)
@@ -279,7 +279,7 @@ def sub_skin(skin, v0: float, v1: float):
     boundaries, so no kernel split and no trimmed faces are needed to cut it out."""
     from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeFace as _MF
 
-    from ..measure import skin_of
+    from .measure import skin_of
 
     srf = bspline_surface(skin.poles, skin.tu, skin.tv, skin.du, skin.dv)
     u0, u1 = float(skin.tu[0]), float(skin.tu[-1])

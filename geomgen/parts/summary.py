@@ -1,4 +1,4 @@
-"""The shop-parts summary as text, from the report that :func:`geomgen.cad.shop.write_shop_parts`
+"""The shop-parts summary as text, from the report that :func:`geomgen.parts.write_shop_parts`
 returns and writes as ``<spec>-shop-parts.json``."""
 
 from __future__ import annotations

@@ -4,14 +4,14 @@ from __future__ import annotations
 
 import numpy as np
 
-from ... import defaults
-from ...errors import GeometryError
-from ...geometry.tessellate import tessellate
-from ...sections.base import Section
-from ...shop3d.core import plan_core
-from ...shop3d.mould import parting_skin, plate_box, root_frame
-from ..loft import solid_from_skin, volume_mm3
-from .kernel import centroid, checked, fuse, make_tool, plane_face, prepared, skin_face, split, transformed
+from .. import defaults
+from ..errors import GeometryError
+from ..geometry.tessellate import tessellate
+from ..sections.base import Section
+from .core import plan_core
+from .mould import parting_skin, plate_box, root_frame
+from ..cad.loft import solid_from_skin, volume_mm3
+from ..cad.ops import centroid, checked, fuse, make_tool, plane_face, prepared, skin_face, split, transformed
 from .output import Output
 
 
