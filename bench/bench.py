@@ -32,7 +32,7 @@ def main():
     print(f"geomgen --help (new process): {help_t:.2f} s  [target <= 0.5 s]")
 
     t = time.perf_counter()
-    from geomgen.build import Part, build
+    from geomgen.cad.shape import SurfaceShape as Part, build
     from geomgen.cad import export  # noqa: F401  (kernel import counted here)
     from geomgen.geometry import build_models
     from geomgen.spec import load_spec, load_spec_text

@@ -1,53 +1,28 @@
-"""Spec -> files: the one pipeline behind ``geomgen build`` (and a plain Python call)."""
+"""``geomgen build``: every surface of a project to a STEP solid and an STL (3MF if asked),
+plus an assembly STEP, written whole or not at all into the project's output set."""
 
 from __future__ import annotations
 
 import time
 from dataclasses import dataclass, field
-from functools import cached_property
 from pathlib import Path
 from typing import Callable
 
-import numpy as np
-
-from . import defaults
-from .geometry import SurfaceModel, build_models
+from . import CAUTION, __version__
 from .geometry.figures import Figures, intended_figures
-from .geometry.skin import Skin
-from .geometry.tessellate import tessellate
-from .sections.base import Section
-from .spec import load_spec
+from .outputs import Output, output_name, write_set
+from .project import Project
+
+#: format -> (file suffix, what the index says the file is for)
+BUILD_FORMATS = {
+    "step": (".step", "B-spline solid in the datum frame, mm: machine or import it"),
+    "stl": (".stl", "watertight mesh of the same skin, mm (chordal tolerance in the manifest)"),
+    "3mf": (".3mf", "the STL's mesh as a 3MF package, unit mm"),
+}
 
 
 @dataclass
-class Part:
-    """One surface on its way to files: model, skin, and (lazily) solid and meshes."""
-
-    model: SurfaceModel
-
-    @property
-    def name(self) -> str:
-        return self.model.name
-
-    @property
-    def skin(self) -> Skin:
-        return self.model.skin
-
-    @cached_property
-    def solid(self):
-        from .cad.loft import solid_from_skin
-
-        return solid_from_skin(self.skin, te_open=self.model.spec.te_thickness > 0, name=self.name)
-
-    def mesh(self, tol: float = defaults.STL_LINEAR_TOL_MM):
-        """(vertices (n, 3) mm, faces (m, 3)) of the same skin, chordal deviation ``tol`` mm."""
-        # start coarse (creases included) and let the chordal test refine where needed
-        v0 = np.concatenate([seg[::3] for seg in self.model.loft_y()] + [self.model.loft_breaks()])
-        return tessellate(self.skin, self.model.spec.te_thickness > 0, Section.loop_parameter(10), v0, tol)
-
-
-@dataclass
-class PartResult:
+class SurfaceResult:
     name: str
     role: str
     figures: Figures
@@ -58,74 +33,95 @@ class PartResult:
 class BuildResult:
     spec_name: str
     out_dir: Path
-    parts: list[PartResult]
+    parts: list[SurfaceResult]
     files: list[Path]
     seconds: float
     notes: list = field(default_factory=list)
 
 
-def build_info(spec_path, stl_tol: float) -> dict:
-    """What makes outputs fresh: the spec's bytes and the mesh tolerance (and the version)."""
-    from .outputs import spec_digest
-
-    return {"spec": Path(spec_path).name, "spec_sha256": spec_digest(spec_path), "stl_tol_mm": stl_tol}
-
-
-def output_names(spec_name: str, part_names, formats=("step", "stl"), assembly: bool = True) -> list[str]:
-    """File names a build writes."""
-    from .cad.export import EXPORTERS
-
-    names = [part_file(spec_name, p, EXPORTERS[f][0]) for p in part_names for f in formats]
-    if assembly and "step" in formats and len(part_names) > 1:
-        names.append(part_file(spec_name, "assembly", ".step"))
+def build_names(project: Project, formats=("step", "stl"), assembly: bool = True) -> dict[str, list[str]]:
+    """surface name (or ``assembly``) -> output names a build writes."""
+    names = {m.name: [output_name(project.name, m.name, suffix=BUILD_FORMATS[f][0]) for f in formats]
+             for m in project.models}
+    if assembly and "step" in formats and len(project.models) > 1:
+        names["assembly"] = [output_name(project.name, "assembly", suffix=".step")]
     return names
 
 
-def part_file(spec_name: str, part: str, suffix: str) -> str:
-    """The one naming rule of build outputs: ``<set>-<part><suffix>``."""
-    return f"{spec_name}-{part}{suffix}"
+def freshness_info(project: Project) -> dict:
+    """What makes build outputs current: the spec's bytes and the mesh tolerance (and version)."""
+    return {"spec_sha256": project.spec_sha256, "stl_tol_mm": project.stl_tol}
 
 
-def build(spec_path, out_dir, *, formats=("step", "stl"), stl_tol: float = defaults.STL_LINEAR_TOL_MM,
-          assembly: bool = True, progress: Callable[[str], None] | None = None,
-          allow_outside_files: bool = False) -> BuildResult:
-    """Build every surface of the spec at ``spec_path`` into ``out_dir``.
+def build(project, out_dir=None, *, formats=("step", "stl"), stl_tol: float | None = None, assembly: bool = True,
+          progress: Callable[[str], None] | None = None, allow_outside_files: bool = False) -> BuildResult:
+    """Build every surface of ``project`` (a :class:`Project`, or a spec path) into its output set.
 
     Raises SpecError (exit 2), GeometryError or ExportError (exit 3). Either every file is
     written, or none is and earlier outputs stay as they were.
     """
-    from .cad.export import EXPORTERS
-    from .outputs import Staging
+    from .cad.shape import shapes_of
 
+    opts = {"allow_outside_files": allow_outside_files}
+    if stl_tol is not None:
+        opts["stl_tol"] = stl_tol
+    project = Project.of(project, out_dir, **opts)
     t0 = time.perf_counter()
     say = progress or (lambda msg: None)
-    spec = load_spec(spec_path, allow_outside_files)
-    parts = [Part(m) for m in build_models(spec)]
-    results = [PartResult(p.name, p.model.role, intended_figures(p.model)) for p in parts]
-    for p in parts:  # make every solid (and so refuse invalid geometry) before writing anything
-        say(f"lofting {p.name}")
-        p.solid
-    opts = {"stl_tol": stl_tol, "assembly_name": spec.name}
-    with Staging(out_dir) as stage:
-        for p, res in zip(parts, results):
-            for fmt in formats:
-                suffix, writer = EXPORTERS[fmt]
-                fname = part_file(spec.name, p.name, suffix)
-                say(f"writing {fname}")
-                writer([p], stage.path(fname), opts)
-                res.files.append(Path(out_dir) / fname)
-        if assembly and "step" in formats and len(parts) > 1:
-            fname = part_file(spec.name, "assembly", ".step")
-            say(f"writing {fname}")
-            EXPORTERS["step"][1](parts, stage.path(fname), opts)
-        files = stage.commit(build_info(spec_path, stl_tol))
-    return BuildResult(spec.name, Path(out_dir), results, files, time.perf_counter() - t0, fit_notes(spec, parts))
+    shapes = shapes_of(project)
+    results = [SurfaceResult(s.name, s.model.role, intended_figures(s.model)) for s in shapes]
+    for s in shapes:  # make every solid (and so refuse invalid geometry) before writing anything
+        say(f"lofting {s.name}")
+        s.solid
+    names = build_names(project, formats, assembly)
+    options = {"stl_tol": project.stl_tol, "assembly_name": project.name}
+    outputs = []
+    for s, res in zip(shapes, results):
+        for fmt, name in zip(formats, names[s.name]):
+            outputs.append(Output(name, fmt, ([s], options), f"{s.name}: {BUILD_FORMATS[fmt][1]}"))
+            res.files.append(project.out_dir / name)
+    if "assembly" in names:
+        outputs.append(Output(names["assembly"][0], "step", (shapes, options),
+                              "every surface in one STEP, each a named component in the datum frame"))
+    result = BuildResult(project.name, project.out_dir, results, [], 0.0, fit_notes(project))
+    summary_name = output_name(project.name, "build", suffix=".txt")
+    result.files = [project.out_dir / o.name for o in outputs]
+    result.seconds = time.perf_counter() - t0
+    outputs.append(Output(summary_name, "text", lambda: format_build_summary(result, for_file=True),
+                          "what the build wrote and the intended figures per surface"))
+    done = write_set(project.out_dir, outputs, project.output_info("build", **freshness_info(project)), say)
+    result.files = done.files  # the summary too
+    result.notes += done.notes()
+    result.seconds = time.perf_counter() - t0
+    return result
 
 
-def fit_notes(spec, parts) -> list[str]:
+def format_build_summary(res: BuildResult, for_file: bool = False) -> str:
+    """Files written and the intended figures per surface, as aligned text.
+
+    ``for_file``: the copy written into the set, without time or folder (same spec, same bytes)."""
+    head = f"geomgen {__version__}: built '{res.spec_name}'"
+    lines = [head if for_file else f"{head} into {res.out_dir} in {res.seconds:.1f} s", ""]
+    lines.append(f"{'surface':<16} {'role':<10} {'span mm':>9} {'area cm²':>10} {'AR':>6} {'MAC mm':>8} "
+                 f"{'volume cm³':>11}")
+    for p in res.parts:
+        f = p.figures
+        lines.append(f"{p.name:<16} {p.role:<10} {f.span_mm:9.1f} {f.projected_area_cm2:10.1f} "
+                     f"{f.aspect_ratio:6.2f} {f.mac_mm:8.2f} {f.volume_cm3:11.1f}")
+    lines += ["", "intended figures (from the spec); 'geomgen check' measures the files."]
+    if res.notes:
+        lines += [""] + [f"note: {n}" for n in res.notes]
+    lines += ["", "written:"]
+    lines += [f"  {Path(p).relative_to(res.out_dir) if for_file else p}" for p in res.files]
+    lines += ["", "CAUTION: " + CAUTION]
+    return "\n".join(lines)
+
+
+def fit_notes(project: Project) -> list[str]:
     """One line per section fitted to a coordinate file: its largest deviation from the file."""
+    spec = project.spec
     notes = []
-    named = parts[0].model.named_sections if parts else {}
+    named = project.models[0].named_sections if project.models else {}
     for name, sspec in spec.sections.items():
         sec = named.get(name)
         if sspec.file is None or sec is None or sec.fit_deviation is None:

@@ -1,5 +1,11 @@
 """Command line: thin wrappers over the library. Heavy imports live inside the commands so
-``geomgen --help`` never loads the CAD kernel."""
+``geomgen --help`` never loads the CAD kernel.
+
+Shared options are defined once (:func:`spec_argument`, :func:`out_option`, :func:`json_option`,
+:func:`outside_option`); every command makes one :class:`~geomgen.project.Project` and hands
+it to the pipeline; one error handler (:class:`Commands`) turns geomgen's errors, disk and
+permission failures and Ctrl-C into one line each and an exit code.
+"""
 
 from __future__ import annotations
 
@@ -10,12 +16,16 @@ from pathlib import Path
 import click
 
 from . import CAUTION, __version__
-from .errors import GeomgenError, SpecError
+from .errors import CheckFailed, ExportError, GeomgenError, GeometryError, SpecError
+
+#: exit code and the word that starts each message, per kind of failure
+KIND = {SpecError: "spec error", GeometryError: "geometry error", ExportError: "cannot write",
+        CheckFailed: "check failed"}
 
 
 def _fail(exc: GeomgenError):
     lines = exc.problems if isinstance(exc, SpecError) else [str(exc)]
-    kind = {2: "spec error", 3: "geometry error"}.get(exc.exit_code, "error")
+    kind = next((w for cls, w in KIND.items() if isinstance(exc, cls)), "error")
     for line in lines:
         click.echo(f"{kind}: {line}", err=True)
     if isinstance(exc, SpecError) and len(lines) > 1:
@@ -23,11 +33,21 @@ def _fail(exc: GeomgenError):
     sys.exit(exc.exit_code)
 
 
-def _run(fn, *args, **kwargs):
-    try:
-        return fn(*args, **kwargs)
-    except GeomgenError as exc:
-        _fail(exc)
+class Commands(click.Group):
+    """The group with the one error handler of every command."""
+
+    def invoke(self, ctx):
+        try:
+            return super().invoke(ctx)
+        except GeomgenError as exc:
+            _fail(exc)
+        except OSError as exc:  # a disk or permission failure outside a writer: not a geometry error
+            where = f"{exc.filename}: " if getattr(exc, "filename", None) else ""
+            click.echo(f"cannot read or write: {where}{exc.strerror or exc}", err=True)
+            sys.exit(3)
+        except KeyboardInterrupt:
+            click.echo("interrupted; outputs are written whole or not at all", err=True)
+            sys.exit(130)
 
 
 class _Progress:
@@ -36,7 +56,6 @@ class _Progress:
     def __init__(self, after: float = 2.0):
         self.t0 = time.perf_counter()
         self.after = 0.0 if sys.stderr.isatty() else after
-        self.pending: list[str] = []
 
     def __call__(self, msg: str):
         dt = time.perf_counter() - self.t0
@@ -44,74 +63,81 @@ class _Progress:
             click.echo(f"[{dt:5.1f} s] {msg}", err=True)
 
 
-def _outside() -> bool:
-    ctx = click.get_current_context()
-    return bool((ctx.find_root().obj or {}).get("allow_outside_files"))
+# -- shared options, defined once ------------------------------------------------------
+def spec_argument(f):
+    return click.argument("spec", type=click.Path(dir_okay=False))(f)
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+def out_option(f):
+    return click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
+                        help="output folder [default: out/<spec file name without .toml>]")(f)
+
+
+def json_option(f):
+    return click.option("--json", "as_json", is_flag=True, help="machine-readable output (JSON on stdout)")(f)
+
+
+def outside_option(f):
+    return click.option("--allow-outside-files", "allow_outside_files", is_flag=True, default=False,
+                        help="let the spec read coordinate files outside its own folder")(f)
+
+
+def stl_tol_option(f):
+    return click.option("--stl-tol", type=click.FloatRange(min=0.001, max=5.0), default=None,
+                        help="STL chordal deviation from the B-spline surface, mm [default 0.05]")(f)
+
+
+def _project(spec, out_dir=None, allow_outside_files=False, stl_tol=None):
+    """The one project of this command (global ``--allow-outside-files`` counts too)."""
+    from . import defaults
+    from .project import Project
+
+    root = click.get_current_context().find_root().obj or {}
+    return Project(spec, out_dir, allow_outside_files=bool(allow_outside_files or root.get("allow_outside_files")),
+                   stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM)
+
+
+@click.group(cls=Commands, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="geomgen")
-@click.option("--allow-outside-files", is_flag=True,
-              help="let a spec read coordinate files outside its own folder")
+@outside_option
 @click.pass_context
 def main(ctx, allow_outside_files):
     """geomgen: a lifting-surface spec (TOML) to STEP solids and STL meshes, measured back.
 
-    Frame: x aft, y starboard, z up; mm and degrees. Exit codes: 0 ok, 1 a check failed,
-    2 the spec or the command line is wrong, 3 geometry could not be made or written.
+    Frame: x aft, y starboard, z up; mm and degrees. Outputs go to one folder per spec
+    (default out/<spec name>): cad/, print/, drawings/, report/, with geomgen-index.md listing
+    every file. Exit codes: 0 ok, 1 a check failed, 2 the spec or the command line is wrong,
+    3 geometry could not be made or a file could not be written, 130 interrupted.
     """
     ctx.obj = {"allow_outside_files": allow_outside_files}
 
 
 @main.command()
-@click.argument("spec", type=click.Path(dir_okay=False))
-@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
-              help="output folder [default: out/<spec name>]")
-@click.option("--stl-tol", type=click.FloatRange(min=0.001, max=5.0), default=None,
-              help="STL chordal deviation from the B-spline surface, mm [default 0.05]")
+@spec_argument
+@out_option
+@stl_tol_option
 @click.option("--no-stl", is_flag=True, help="write STEP only")
-@click.option("--3mf", "with_3mf", is_flag=True, help="also write a 3MF (mm) of each part's mesh")
-def build(spec, out_dir, stl_tol, no_stl, with_3mf):
-    """Build every surface of SPEC: a STEP solid and a binary STL per part, plus an
-    assembly STEP with every part named."""
-    from . import defaults
-    from .build import build as do_build
+@click.option("--3mf", "with_3mf", is_flag=True, help="also write a 3MF (mm) of each surface's mesh")
+@outside_option
+def build(spec, out_dir, stl_tol, no_stl, with_3mf, allow_outside_files):
+    """Build every surface of SPEC: a STEP solid and a binary STL per surface, plus an
+    assembly STEP with every surface named."""
+    from .build import build as do_build, format_build_summary
 
-    out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
     formats = ("step",) if no_stl else ("step", "stl")
-    res = _run(do_build, spec, out, formats=formats + (("3mf",) if with_3mf else ()),
-               stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM, progress=_Progress(),
-               allow_outside_files=_outside())
+    project = _project(spec, out_dir, allow_outside_files, stl_tol)
+    res = do_build(project, formats=formats + (("3mf",) if with_3mf else ()), progress=_Progress())
     click.echo(format_build_summary(res))
 
 
-def format_build_summary(res) -> str:
-    """Files written and the intended figures per part, as aligned text."""
-    lines = [f"geomgen {__version__}: built '{res.spec_name}' into {res.out_dir} in {res.seconds:.1f} s", ""]
-    lines.append(f"{'part':<16} {'role':<10} {'span mm':>9} {'area cm²':>10} {'AR':>6} {'MAC mm':>8} "
-                 f"{'volume cm³':>11}")
-    for p in res.parts:
-        f = p.figures
-        lines.append(f"{p.name:<16} {p.role:<10} {f.span_mm:9.1f} {f.projected_area_cm2:10.1f} "
-                     f"{f.aspect_ratio:6.2f} {f.mac_mm:8.2f} {f.volume_cm3:11.1f}")
-    lines += ["", "intended figures (from the spec); 'geomgen check' measures the files."]
-    if res.notes:
-        lines += [""] + [f"note: {n}" for n in res.notes]
-    lines += ["", "written:"]
-    lines += [f"  {p}" for p in res.files]
-    lines += ["", "CAUTION: " + CAUTION]
-    return "\n".join(lines)
-
-
 @main.command()
-@click.argument("spec", type=click.Path(dir_okay=False))
-@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
-              help="output folder of the build [default: out/<spec name>]")
+@spec_argument
+@out_option
 @click.option("--rebuild", is_flag=True, help="build again even if the outputs are fresh")
-@click.option("--stl-tol", type=click.FloatRange(min=0.001, max=5.0), default=None,
-              help="STL chordal deviation of the build being checked, mm [default 0.05]")
-@click.option("--json", "as_json", is_flag=True, help="machine-readable output")
-def check(spec, out_dir, rebuild, stl_tol, as_json):
+@stl_tol_option
+@json_option
+@outside_option
+def check(spec, out_dir, rebuild, stl_tol, as_json, allow_outside_files):
     """Measure the files a build of SPEC wrote and hold them against the intended figures and
     the spec's expect/check_at tables. Builds first when outputs are missing or stale.
 
@@ -120,24 +146,24 @@ def check(spec, out_dir, rebuild, stl_tol, as_json):
     """
     import json
 
-    from .check.text import format_terminal
     from .check.run import check as do_check
+    from .check.text import format_terminal
 
-    from . import defaults
-
-    res = _run(do_check, spec, out_dir, rebuild=rebuild, stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM,
-               progress=_Progress(), allow_outside_files=_outside())
+    res = do_check(_project(spec, out_dir, allow_outside_files, stl_tol), rebuild=rebuild, progress=_Progress())
     click.echo(json.dumps(res.as_dict(), indent=2, default=float) if as_json else format_terminal(res))
     sys.exit(0 if res.ok else 1)
 
 
 @main.command()
-@click.argument("spec", type=click.Path(dir_okay=False))
+@spec_argument
+@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
+              help="also write the summary (text and JSON) into this output folder's report/")
 @click.option("--cg", "cg_x", type=float, default=None,
               help="datum x of the centre of gravity, mm (gives the static margin)")
 @click.option("--sideslip", is_flag=True, help="also put masts and fins in the lattice (side force)")
-@click.option("--json", "as_json", is_flag=True, help="machine-readable output")
-def balance(spec, cg_x, sideslip, as_json):
+@json_option
+@outside_option
+def balance(spec, out_dir, cg_x, sideslip, as_json, allow_outside_files):
     """Neutral point, lift split and trim of the foil set in SPEC (vortex-lattice method).
 
     Trims at the speeds of the spec's [flight] table: front wing and stabilizer lift, the
@@ -145,57 +171,76 @@ def balance(spec, cg_x, sideslip, as_json):
     """
     import json
 
-    from .hydro import analyse_spec, format_hydro
-    from .spec import load_spec
+    from .hydro import balance_of, format_hydro
 
-    res = _run(lambda: analyse_spec(load_spec(spec, _outside()), cg_x_mm=cg_x, include_vertical=sideslip or None))
-    click.echo(json.dumps(res.as_dict(), indent=2) if as_json else format_hydro(res))
+    project = _project(spec, out_dir, allow_outside_files)
+    res = balance_of(project, cg_x_mm=cg_x, include_vertical=sideslip or None)
+    text = format_hydro(res)
+    click.echo(json.dumps(res.as_dict(), indent=2) if as_json else text)
+    if out_dir is not None:
+        from .outputs import Output, output_name, write_set
+
+        done = write_set(project.out_dir, [
+            Output(output_name(project.name, "balance", suffix=".txt"), "text", text,
+                   "what the balance command printed: neutral point, lift split, trim"),
+            Output(output_name(project.name, "balance", suffix=".json"), "json", res.as_dict(),
+                   "the balance as JSON")], project.output_info("balance"))
+        for n in done.notes():
+            click.echo(f"note: {n}", err=True)
 
 
 @main.command()
-@click.argument("spec", type=click.Path(dir_okay=False))
-@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
-              help="output folder [default: out/<spec name>]")
-def drawings(spec, out_dir):
+@spec_argument
+@out_option
+@outside_option
+def drawings(spec, out_dir, allow_outside_files):
     """Shaper's drawings of SPEC: 1:1 section templates (DXF and SVG with scale rulers),
     offset tables (CSV) and hot-wire profiles with matching point counts."""
     from .drawings import format_shop_summary, write_shop_drawings
 
-    out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
-    click.echo(format_shop_summary(_run(write_shop_drawings, spec, out, progress=_Progress())))
+    project = _project(spec, out_dir, allow_outside_files)
+    click.echo(format_shop_summary(write_shop_drawings(project, progress=_Progress())))
 
 
 @main.command()
-@click.argument("spec", type=click.Path(dir_okay=False))
-@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
-              help="output folder [default: out/<spec name>]")
-def report(spec, out_dir):
+@spec_argument
+@out_option
+@outside_option
+def report(spec, out_dir, allow_outside_files):
     """One self-contained design report of SPEC (HTML with embedded plots, plus Markdown and
     JSON): views with MAC, neutral point and centres of pressure, sections, spanwise plots,
-    the check table and the trim table. Builds and checks first when needed."""
+    the check table and the trim table. Builds and checks first when needed.
+
+    Exit 1 when the check finds a fault or a failed expectation (the report is still written)."""
     from .report import write_report
 
-    out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
-    files = _run(write_report, spec, out, progress=_Progress())
-    click.echo(f"geomgen {__version__}: report of '{Path(spec).name}' written:")
+    project = _project(spec, out_dir, allow_outside_files)
+    files = write_report(project, progress=_Progress())
+    click.echo(f"geomgen {__version__}: report of '{project.spec_path.name}' written:")
     click.echo("\n".join(f"  {p}" for p in files))
     click.echo(f"open {files[0]} in a browser (no network needed)")
+    for n in files.notes:
+        click.echo(f"note: {n}")
+    if not files.ok:
+        click.echo("the check found a geometry fault or a failed expectation: see the report's check table "
+                   "(exit 1)", err=True)
     click.echo("CAUTION: " + CAUTION)
+    sys.exit(0 if files.ok else 1)
 
 
 @main.command()
-@click.argument("spec", type=click.Path(dir_okay=False))
-@click.option("-o", "--out", "out_dir", type=click.Path(file_okay=False), default=None,
-              help="output folder [default: out/<spec name>]")
-def parts(spec, out_dir):
+@spec_argument
+@out_option
+@outside_option
+def parts(spec, out_dir, allow_outside_files):
     """Shop parts of SPEC from its [surface.mount], [surface.printing] and [surface.laminate]
-    tables: the part with mounting pad and bolt holes, incidence shims, printable pieces with
-    locators and spar channels (STL and 3MF), cores and two-half moulds. Every solid is
+    tables: the surface with mounting pad and bolt holes, incidence shims, printable pieces
+    with locators and spar channels (STL and 3MF), cores and two-half moulds. Every solid is
     checked before anything is written."""
     from .parts import format_parts_summary, write_shop_parts
 
-    out = Path(out_dir) if out_dir else Path("out") / Path(spec).stem
-    click.echo(format_parts_summary(_run(write_shop_parts, spec, out, progress=_Progress())))
+    project = _project(spec, out_dir, allow_outside_files)
+    click.echo(format_parts_summary(write_shop_parts(project, progress=_Progress())))
 
 
 @main.command()
@@ -212,12 +257,23 @@ def schema():
 @click.argument("path", type=click.Path(dir_okay=False), default="foil.toml")
 def new(path):
     """Write a commented starter spec to PATH (default foil.toml) that builds as written."""
+    import os
+
     from .starter import STARTER
 
     p = Path(path)
-    if p.exists():
-        _fail(SpecError([f"{p} exists; geomgen does not overwrite files it did not write"]))
-    p.write_text(STARTER)
+    if p.exists() or p.is_symlink():
+        raise SpecError([f"{p} exists; geomgen does not overwrite files it did not write"])
+    if not p.parent.is_dir():
+        raise SpecError([f"{p}: the folder {p.parent} does not exist"])
+    try:  # O_EXCL: never through a link, never over a file that appeared meanwhile
+        fd = os.open(p, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o644)
+    except FileExistsError:
+        raise SpecError([f"{p} exists; geomgen does not overwrite files it did not write"]) from None
+    except OSError as exc:
+        raise ExportError(f"{p}: {exc.strerror or exc}") from None
+    with os.fdopen(fd, "w") as f:
+        f.write(STARTER)
     click.echo(f"wrote {p}; build it with: geomgen build {p}")
 
 

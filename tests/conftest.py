@@ -57,3 +57,14 @@ def demo_build(tmp_path_factory):
 
     out = tmp_path_factory.mktemp("demo")
     return build(DEMO, out)
+
+
+def snapshot(folder) -> dict:
+    """Relative POSIX path -> bytes of every file under ``folder`` (hidden staging folders too)."""
+    folder = Path(folder)
+    return {p.relative_to(folder).as_posix(): p.read_bytes() for p in sorted(folder.rglob("*")) if p.is_file()}
+
+
+def files_in(folder) -> set:
+    """Relative POSIX paths of every file under ``folder``."""
+    return set(snapshot(folder))

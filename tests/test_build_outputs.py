@@ -12,13 +12,10 @@ from geomgen.cli import main
 from geomgen.errors import ExportError
 from geomgen.outputs import MANIFEST
 
-from conftest import DEMO, wing_spec
+from conftest import DEMO, files_in, snapshot, wing_spec
+from geomgen.outputs import INDEX
 
 pytestmark = pytest.mark.slow
-
-
-def snapshot(folder):
-    return {p.name: p.read_bytes() for p in sorted(folder.iterdir())}
 
 
 def test_cli_build_prints_files_and_figures(tmp_path):
@@ -28,7 +25,9 @@ def test_cli_build_prints_files_and_figures(tmp_path):
                  "lakeside-cruiser-assembly.step", "lakeside-cruiser-front-wing.stl"):
         assert word in res.output
     manifest = json.loads((tmp_path / "o" / MANIFEST).read_text())
-    assert {f["name"] for f in manifest["files"]} == {p.name for p in (tmp_path / "o").iterdir()} - {MANIFEST}
+    assert {f["name"] for f in manifest["files"]} == files_in(tmp_path / "o") - {MANIFEST, INDEX}
+    assert all(f["command"] == "build" and f["set"] == "lakeside-cruiser" for f in manifest["files"])
+    assert (tmp_path / "o" / "report/lakeside-cruiser-build.txt").read_text().startswith("geomgen ")
 
 
 def test_failed_writer_leaves_earlier_outputs_byte_identical(tmp_path, write_spec, monkeypatch):
@@ -63,14 +62,14 @@ def test_read_only_folder_is_a_clear_error(tmp_path, write_spec):
 
 def test_foreign_file_is_never_overwritten(tmp_path, write_spec):
     out = tmp_path / "o"
-    out.mkdir()
-    foreign = out / "t-w.step"
+    (out / "cad").mkdir(parents=True)
+    foreign = out / "cad/t-w.step"
     foreign.write_text("the shop's own file")
     (out / "notes.txt").write_text("keep me")
     res = CliRunner().invoke(main, ["build", str(write_spec(wing_spec())), "-o", str(out)])
     assert res.exit_code == 3 and "not written by geomgen" in res.output
     assert foreign.read_text() == "the shop's own file"
-    assert sorted(p.name for p in out.iterdir()) == ["notes.txt", "t-w.step"]
+    assert files_in(out) == {"notes.txt", "cad/t-w.step"}
 
 
 def test_rebuild_replaces_own_files_and_keeps_others(tmp_path, write_spec):
@@ -110,11 +109,11 @@ def test_optional_3mf_holds_the_same_mesh_in_millimetres(tmp_path, write_spec):
     out = tmp_path / "o"
     r = CliRunner().invoke(main, ["build", str(write_spec(wing_spec(te=0.5))), "-o", str(out), "--3mf"])
     assert r.exit_code == 0, r.output
-    with zipfile.ZipFile(out / "t-w.3mf") as z:
+    with zipfile.ZipFile(out / "print/t-w.3mf") as z:
         root = ET.fromstring(z.read("3D/3dmodel.model"))
     assert root.get("unit") == "millimeter"
     ns = {"m": root.tag.split("}")[0][1:]}
     v = np.array([[float(e.get(k)) for k in "xyz"] for e in root.iterfind(".//m:vertex", ns)])
     f = np.array([[int(e.get(k)) for k in ("v1", "v2", "v3")] for e in root.iterfind(".//m:triangle", ns)])
-    stl = trimesh.load(out / "t-w.stl", force="mesh")
+    stl = trimesh.load(out / "print/t-w.stl", force="mesh")
     assert trimesh.Trimesh(v, f).volume == pytest.approx(stl.volume, rel=1e-5)

@@ -89,14 +89,14 @@ def test_scaled_step_is_caught_as_a_geometry_fault(tmp_path):
     from OCP.BRepBuilderAPI import BRepBuilderAPI_Transform
     from OCP.gp import gp_Pnt, gp_Trsf
 
-    from geomgen.build import Part
+    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.cad.export import write_step
     from geomgen.cad.readback import read_step
 
     out = tmp_path / "o"
     first = check(DEMO, out, write_record=False)
     assert first.ok
-    path = out / "lakeside-cruiser-stabilizer.step"
+    path = out / "cad/lakeside-cruiser-stabilizer.step"
     (name, solid), = read_step(path)
     tr = gp_Trsf()
     tr.SetScale(gp_Pnt(0, 0, 0), 1.01)
@@ -110,7 +110,7 @@ def test_scaled_step_is_caught_as_a_geometry_fault(tmp_path):
     write_step([fake], path, {})
     res = check(DEMO, out, write_record=False)
     assert not res.ok and not res.built
-    assert "lakeside-cruiser-stabilizer.step" in res.modified
+    assert "cad/lakeside-cruiser-stabilizer.step" in res.modified
     faulty = {r.figure for r in res.faults if r.part == "stabilizer"}
     assert {"span_mm", "mac_mm", "volume_cm3", "projected_area_cm2"} <= faulty
     assert not any(r.part == "front-wing" for r in res.faults)
@@ -129,11 +129,11 @@ def test_check_at_stations_and_record_files(tmp_path, write_spec):
     assert measured(res, "w", "chord@200").verdict == "FAIL"  # 150 mm, not 140
     prof = measured(res, "w", "profile@100")
     assert prof.step < 0.01 and prof.verdict == "pass"
-    assert (tmp_path / "o" / "t-check.md").read_text().startswith("# Check record: t")
-    data = json.loads((tmp_path / "o" / "t-check.json").read_text())
+    assert (tmp_path / "o" / "report/t-check.md").read_text().startswith("# Check record: t")
+    data = json.loads((tmp_path / "o" / "report/t-check.json").read_text())
     assert data["ok"] is False and any(r["figure"] == "chord@200" for r in data["records"])
     manifest = json.loads((tmp_path / "o" / "geomgen-manifest.json").read_text())
-    assert {"t-w.step", "t-check.md"} <= {f["name"] for f in manifest["files"]}
+    assert {"cad/t-w.step", "report/t-check.md"} <= {f["name"] for f in manifest["files"]}
 
 
 def test_check_json_and_reuse(tmp_path):

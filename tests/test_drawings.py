@@ -19,7 +19,7 @@ from scipy.spatial import cKDTree
 from geomgen import CAUTION
 from geomgen.errors import GeometryError, SpecError
 from geomgen.geometry import build_models
-from geomgen.outputs import MANIFEST, read_manifest
+from geomgen.outputs import INDEX, MANIFEST, read_manifest
 from geomgen.sections import naca
 from geomgen.sections.base import cosine_s
 from geomgen.drawings import format_shop_summary, hotwire, svg, write_shop_drawings
@@ -68,7 +68,7 @@ def _dist_to_polyline(points: np.ndarray, poly: np.ndarray) -> np.ndarray:
 def test_template_dxf_reads_back_within_001_mm(write_spec, tmp_path):
     spec, files = _write(write_spec, tmp_path, **TWISTED)
     model = build_models(load_spec(spec))[0]
-    doc = ezdxf.readfile(tmp_path / "out" / "t-w-templates.dxf")
+    doc = ezdxf.readfile(tmp_path / "out" / "drawings/t-w-templates.dxf")
     assert doc.header["$INSUNITS"] == 4  # millimetres
     assert {"outline", "chord-line", "reference-mark", "labels"} <= {l.dxf.name for l in doc.layers}
     groups = {name: list(g) for name, g in doc.groups}
@@ -95,7 +95,7 @@ def test_template_dxf_reads_back_within_001_mm(write_spec, tmp_path):
 
 def test_template_svg_is_1to1_mm_with_rulers(write_spec, tmp_path):
     _write(write_spec, tmp_path, **TWISTED)
-    root = ET.parse(tmp_path / "out" / "t-w-templates.svg").getroot()
+    root = ET.parse(tmp_path / "out" / "drawings/t-w-templates.svg").getroot()
     w_mm, h_mm = (float(root.get(k).removesuffix("mm")) for k in ("width", "height"))
     vb = [float(v) for v in root.get("viewBox").split()]
     assert root.get("width").endswith("mm") and root.get("height").endswith("mm")
@@ -126,7 +126,7 @@ def test_template_svg_is_1to1_mm_with_rulers(write_spec, tmp_path):
 def test_offsets_match_section_generator(write_spec, tmp_path):
     spec, _ = _write(write_spec, tmp_path, **TWISTED)
     model = build_models(load_spec(spec))[0]
-    path = tmp_path / "out" / "t-w-offsets.csv"
+    path = tmp_path / "out" / "drawings/t-w-offsets.csv"
     assert " ".join(CAUTION.split()[:6]) in path.read_text()
     rows = _csv_rows(path)
     assert sorted({float(r["y_mm"]) for r in rows}) == [0, 75, 150, 300]
@@ -158,7 +158,7 @@ def test_offsets_naca0012_against_abbott(write_spec, tmp_path, te):
     extra = "[surface.shop]\noffset_pct = [" + ", ".join(f"{p:g}" for p in pct) + "]\nhotwire = false\n"
     _write(write_spec, tmp_path, te=te, mirror=False, extra=extra,
            stations=[dict(y=0, chord=100), dict(y=200, chord=100)])
-    rows = [r for r in _csv_rows(tmp_path / "out" / "t-w-offsets.csv") if float(r["y_mm"]) == 0.0]
+    rows = [r for r in _csv_rows(tmp_path / "out" / "drawings/t-w-offsets.csv") if float(r["y_mm"]) == 0.0]
     got = {float(r["x_pct"]): (float(r["upper_mm"]), float(r["lower_mm"])) for r in rows}
     for x, yt in ABBOTT_0012.items():
         if te == 0.0 and x > 50:
@@ -223,7 +223,7 @@ def test_hotwire_ends_in_step_and_in_the_surface_frame(write_spec, tmp_path):
     names = sorted(p.name for p in files if "hotwire" in p.name)
     assert names == ["t-w-hotwire-0-150.dxf", "t-w-hotwire-0-150.txt", "t-w-hotwire-150-300.dxf",
                      "t-w-hotwire-150-300.txt"]
-    lines = (tmp_path / "out" / "t-w-hotwire-150-300.txt").read_text().splitlines()
+    lines = (tmp_path / "out" / "drawings/t-w-hotwire-150-300.txt").read_text().splitlines()
     assert lines[sum(ln.startswith("#") for ln in lines)] == "i,a_x_mm,a_z_mm,b_x_mm,b_z_mm"
     rows = np.array([ln.split(",") for ln in lines if ln[0].isdigit()], float)
     a, b = rows[:-1, 1:3], rows[:-1, 3:5]
@@ -232,7 +232,7 @@ def test_hotwire_ends_in_step_and_in_the_surface_frame(write_spec, tmp_path):
     for y, got in ((150.0, a), (300.0, b)):
         want = model.section_loop(y, 40)[:, [0, 2]]
         assert np.abs(got - want).max() < 1e-3
-    doc = ezdxf.readfile(tmp_path / "out" / "t-w-hotwire-150-300.dxf")
+    doc = ezdxf.readfile(tmp_path / "out" / "drawings/t-w-hotwire-150-300.dxf")
     assert doc.header["$INSUNITS"] == 4
     ends = {e.dxf.layer: np.array(list(e.get_points("xy"))) for e in doc.modelspace().query("LWPOLYLINE")}
     assert len(ends["end-a"]) == len(ends["end-b"]) == len(a)
@@ -246,13 +246,13 @@ def test_hotwire_point_counts_match_with_kerf(write_spec, tmp_path, te):
     model = build_models(load_spec(spec))[0]
     for panel in hotwire.panels_of(model):
         assert len(panel.a) == len(panel.b) == 2 * 100 + (0 if te == 0 else 1) + 6 * (1 if te == 0 else 2)
-    txt = (tmp_path / "out" / "t-w-hotwire-120-300.txt").read_text()
+    txt = (tmp_path / "out" / "drawings/t-w-hotwire-120-300.txt").read_text()
     assert "kerf 1 mm: both paths offset outward by 0.5 mm" in txt and "panel y = 120 .. 300 mm" in txt
 
 
 # -- whole or nothing, spec errors, demo ------------------------------------------------------
 def _snapshot(d: Path) -> dict:
-    return {p.name: p.read_bytes() for p in sorted(d.iterdir())}
+    return {p.relative_to(d).as_posix(): p.read_bytes() for p in sorted(d.rglob("*")) if p.is_file()}
 
 
 def test_failing_writer_leaves_nothing(write_spec, tmp_path, monkeypatch):
@@ -270,8 +270,9 @@ def test_failing_writer_leaves_nothing(write_spec, tmp_path, monkeypatch):
 
     files = write_shop_drawings(spec, out)
     before = _snapshot(out)
-    assert set(before) == {p.name for p in files} | {MANIFEST}
-    assert set(read_manifest(out)) == {p.name for p in files}
+    written = {p.relative_to(out).as_posix() for p in files}
+    assert set(before) == written | {MANIFEST, INDEX}
+    assert set(read_manifest(out)) == written
     with monkeypatch.context() as m:
         m.setattr(svg, "write_templates_svg", boom)
         with pytest.raises(RuntimeError):
@@ -301,7 +302,7 @@ def test_demo_set_and_summary(tmp_path):
     assert "lakeside-cruiser-front-wing-hotwire-270-350.txt" in names
     text = format_shop_summary(files)
     assert "front-wing" in text and CAUTION in text
-    mast = (tmp_path / "lakeside-cruiser-mast-templates.svg").read_text()
+    mast = (tmp_path / "drawings/lakeside-cruiser-mast-templates.svg").read_text()
     assert "port side up" in mast  # a vertical-up part's upper side is its port side
 
 
@@ -321,4 +322,4 @@ print(len(files))
 """
     res = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT)
     assert res.returncode == 0, res.stderr
-    assert int(res.stdout) == 5  # templates dxf + svg, offsets csv, one panel txt + dxf
+    assert int(res.stdout) == 6  # templates dxf + svg, offsets csv, one panel txt + dxf, the summary

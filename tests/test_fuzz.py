@@ -43,7 +43,7 @@ def test_valid_specs_give_watertight_meshes_matching_the_intended_volume(params)
     """Geometry core (no kernel): skin, watertight mesh, volume within tolerance × area."""
     import trimesh
 
-    from geomgen.build import Part
+    from geomgen.cad.shape import SurfaceShape as Part
 
     models = models_or_refusal(spec_text(params))
     if models is None:
@@ -62,7 +62,7 @@ def test_valid_specs_give_watertight_meshes_matching_the_intended_volume(params)
 @given(spec_params())
 def test_valid_specs_give_valid_solids_measured_as_intended(params):
     """Through the kernel: a valid solid whose STEP volume and outline match the intended."""
-    from geomgen.build import Part
+    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.cad.loft import check_solid, volume_mm3
     from geomgen.cad.measure import measure_solid
     from geomgen.check.measure import measure_step_solid

@@ -15,11 +15,7 @@ from geomgen.cli import main
 from geomgen.errors import ExportError, SpecError
 from geomgen.outputs import MANIFEST
 
-from conftest import DEMO, wing_spec
-
-
-def snapshot(folder):
-    return {p.name: p.read_bytes() for p in sorted(folder.iterdir())}
+from conftest import DEMO, snapshot, wing_spec
 
 
 @pytest.mark.slow
@@ -28,7 +24,7 @@ def test_same_spec_same_bytes(tmp_path):
     a, b = build(DEMO, tmp_path / "a"), build(DEMO, tmp_path / "b")
     sa, sb = snapshot(a.out_dir), snapshot(b.out_dir)
     assert sa.keys() == sb.keys() and all(sa[k] == sb[k] for k in sa)
-    head = sa["lakeside-cruiser-mast.step"][:400].decode()
+    head = sa["cad/lakeside-cruiser-mast.step"][:400].decode()
     assert "'2000-01-01T00:00:00'" in head and "geomgen" in head
 
 
@@ -39,7 +35,7 @@ def test_manifest_lists_name_size_hash(tmp_path):
     for f in m["files"]:
         data = (tmp_path / "o" / f["name"]).read_bytes()
         assert f["size"] == len(data) and f["sha256"] == hashlib.sha256(data).hexdigest()
-    assert {f["name"] for f in m["files"]} == {p.name for p in res.files}
+    assert {f["name"] for f in m["files"]} == {p.relative_to(tmp_path / "o").as_posix() for p in res.files}
 
 
 @pytest.mark.slow

@@ -124,7 +124,7 @@ def test_stl_is_watertight_and_holds_the_volume(demo_build):
 
 def test_fine_stl_volume_within_a_tenth_of_a_percent(tmp_path):
     """At δ = 0.005 mm the STL volume is within 0.1 % of the analytic integral."""
-    from geomgen.build import Part
+    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.cad.export import write_stl
 
     for model in build_models(load_spec(DEMO)):

@@ -237,13 +237,17 @@ def test_shim_words_give_the_trim_change_from_the_hydrodynamics():
     lattice: a stabilizer leading edge down pushes the tail down, so the board rides nose-up
     and the weight must move forward (the same sign as the decalage rule of thumb)."""
     from conftest import DEMO
+    from geomgen.hydro import shim_trim_change
     from geomgen.parts.mount import plan_shims
-    from geomgen.spec import load_spec
+    from geomgen.project import Project
     from geomgen.spec.parts import MountSpec
 
-    spec = load_spec(DEMO)
-    stab = build_models(spec)[1]
-    (sh,), _ = plan_shims(stab, MountSpec(pad_z=-19.6, pad_x=(415, 470), pad_width=30, shim=[{"angle": -0.5}]), spec)
+    project = Project(DEMO)
+    stab = project.models[1]
+    words, why = shim_trim_change(project, stab.name, -0.5)
+    assert why is None
+    (sh,), _ = plan_shims(stab, MountSpec(pad_z=-19.6, pad_x=(415, 470), pad_width=30, shim=[{"angle": -0.5}]),
+                          project.spec, {-0.5: words})
     text = " ".join(sh.words)
     assert "In trimmed flight at 22 km/h" in text
     assert "more nose-up" in text and "further forward to balance" in text
@@ -370,7 +374,7 @@ def _segments_along_z(solid, x, y):
 def test_hole_axes_are_parallel_to_the_datum_normal(shop):
     from OCP.GeomAbs import GeomAbs_Cone, GeomAbs_Cylinder
 
-    solid = _one(shop.out_dir / "tw-wing-mount.step")
+    solid = _one(shop.out_dir / "cad/tw-wing-mount.step")
     axes = [a.Cylinder().Axis().Direction() for _, a in _faces(solid, GeomAbs_Cylinder)]
     axes += [a.Cone().Axis().Direction() for _, a in _faces(solid, GeomAbs_Cone)]
     assert len(axes) >= 6  # insert pocket + hole, two bolt holes, counterbore, countersink
@@ -386,7 +390,7 @@ def test_pad_is_flat_at_the_datum_height(shop):
     from OCP.TopExp import TopExp_Explorer
     from OCP.TopoDS import TopoDS
 
-    solid = _one(shop.out_dir / "tw-wing-mount.step")
+    solid = _one(shop.out_dir / "cad/tw-wing-mount.step")
     pads = []
     for face, a in _faces(solid, GeomAbs_Plane):
         n = a.Plane().Axis().Direction()
@@ -406,7 +410,7 @@ def test_pad_is_flat_at_the_datum_height(shop):
 
 @pytest.mark.slow
 def test_reported_walls_match_measurements_of_the_written_part(shop):
-    solid = _one(shop.out_dir / "tw-wing-mount.step")
+    solid = _one(shop.out_dir / "cad/tw-wing-mount.step")
     mount = shop.report["surfaces"][0]["mount"]
     items = [(f"hole {h['index']}", h) for h in mount["holes"]] + [("pad", mount["pad"])]
     for what, rec in items:
@@ -435,7 +439,7 @@ def test_piece_volumes_and_removed_features_add_up_to_the_whole(shop):
 
 @pytest.mark.slow
 def test_every_mesh_is_watertight_and_the_3mf_matches_the_stl(shop):
-    stls = sorted(shop.out_dir.glob("*.stl"))
+    stls = sorted(shop.out_dir.glob("print/*.stl"))
     assert len(stls) == 6  # three pieces, joint test, core, shim
     for stl in stls:
         mesh = trimesh.load(stl, force="mesh")
@@ -449,7 +453,7 @@ def test_every_mesh_is_watertight_and_the_3mf_matches_the_stl(shop):
         assert mesh_volume(v, f) == pytest.approx(mesh.volume, rel=1e-6)
         # the mesh lies within its chordal tolerance of the exact solid
         assert abs(mesh.volume - pc["volume_printed_mm3"]) <= 0.05 * mesh.area
-    parts = read_3mf(shop.out_dir / "tw-wing-joint-test.3mf")
+    parts = read_3mf(shop.out_dir / "print/tw-wing-joint-test.3mf")
     assert len(parts) == 2 and all(trimesh.Trimesh(v, f).is_watertight for v, f, _ in parts)
 
 
@@ -475,7 +479,7 @@ def test_pieces_fit_the_printer_and_carry_locators_across_each_joint(shop):
 
 # -- cores and moulds ----------------------------------------------------------------------
 def _outer_skin_face():
-    from geomgen.build import Part
+    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.cad.loft import area_mm2
     from OCP.GeomAbs import GeomAbs_BSplineSurface
 
@@ -514,7 +518,7 @@ def test_core_lies_a_laminate_inside_the_skin(shop):
 
 @pytest.mark.slow
 def test_mould_halves_add_up_to_the_part_and_lie_in_the_machining_pose(shop):
-    from geomgen.build import Part
+    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.cad.loft import volume_mm3
     from geomgen.parts.mould import chord_points
 
@@ -544,9 +548,10 @@ def test_summary_names_the_files_the_shims_and_the_caution(shop):
     text = format_parts_summary(shop)
     assert "tw-wing-shim-minus0.5deg.stl" in text and "thick end forward" in text
     assert "piece 2:" in text and "fits" in text and "CAUTION" in text
-    assert "mount: pad at datum z = -20 mm" in format_parts_summary(shop.out_dir / "tw-shop-parts.json")
+    assert "mount: pad at datum z = -20 mm" in format_parts_summary(shop.out_dir / "report/tw-parts.json")
     manifest = json.loads((shop.out_dir / "geomgen-manifest.json").read_text())
-    assert {f["name"] for f in manifest["files"]} == {p.name for p in shop}
+    assert {f["name"] for f in manifest["files"]} == {p.relative_to(shop.out_dir).as_posix() for p in shop}
+    assert {"report/tw-parts.json", "report/tw-parts.txt"} <= {f["name"] for f in manifest["files"]}
 
 
 @pytest.mark.slow
@@ -557,4 +562,4 @@ def test_refused_geometry_writes_nothing(tmp_path):
     spec.write_text(SPEC.replace("pad_z = -20.0", "pad_z = -37.0"))
     with pytest.raises(GeometryError, match='surface "wing" mount pad'):
         write_shop_parts(spec, tmp_path / "out")
-    assert not (tmp_path / "out").exists() or not any((tmp_path / "out").iterdir())
+    assert not (tmp_path / "out").exists() or not any((tmp_path / "out").rglob("*"))

@@ -17,6 +17,7 @@ import pytest
 
 from geomgen import CAUTION
 from geomgen.outputs import MANIFEST, read_manifest
+from geomgen.project import Project
 from geomgen.report import render_files, report_data, write_report
 
 from conftest import DEMO
@@ -144,16 +145,16 @@ def spec_with_cg(tmp_path, cg_x=-250.0) -> Path:
 def demo_report(tmp_path_factory):
     out = tmp_path_factory.mktemp("report")
     paths = write_report(DEMO, out)
-    data = json.loads((out / "lakeside-cruiser-report.json").read_text())
-    html = (out / "lakeside-cruiser-report.html").read_text()
-    md = (out / "lakeside-cruiser-report.md").read_text()
+    data = json.loads((out / "report/lakeside-cruiser-report.json").read_text())
+    html = (out / "report/lakeside-cruiser-report.html").read_text()
+    md = (out / "report/lakeside-cruiser-report.md").read_text()
     return {"out": out, "paths": paths, "data": data, "html": html, "md": md}
 
 
 @pytest.mark.slow
 def test_files_written_whole_with_the_manifest(demo_report):
     out, paths = demo_report["out"], demo_report["paths"]
-    names = [p.name for p in paths]
+    names = [p.relative_to(out / "report").as_posix() for p in paths]
     assert names[0] == "lakeside-cruiser-report.html"
     for n in ("lakeside-cruiser-report.md", "lakeside-cruiser-report.json", "lakeside-cruiser-report-top.png",
               "lakeside-cruiser-report-side.png", "lakeside-cruiser-report-spanwise.png",
@@ -161,12 +162,12 @@ def test_files_written_whole_with_the_manifest(demo_report):
         assert n in names
     man = read_manifest(out)
     for p in paths:
-        assert p.is_file() and p.stat().st_size == man[p.name]["size"]
+        assert p.is_file() and p.stat().st_size == man[p.relative_to(out).as_posix()]["size"]
     assert not list(out.glob(".geomgen-staging-*"))  # nothing left behind
     assert (out / MANIFEST).is_file()
     # the Markdown's pictures are files beside it, written with it
     for ref in re.findall(r"!\[[^\]]*\]\(([^)]+)\)", demo_report["md"]):
-        assert ref in names and (out / ref).stat().st_size > 5000
+        assert ref in names and (out / "report" / ref).stat().st_size > 5000
 
 
 @pytest.mark.slow
@@ -250,7 +251,7 @@ def test_markdown_shows_the_same_values(demo_report):
 def test_page_renders_in_headless_chromium(demo_report, tmp_path):
     from PIL import Image
 
-    html_path = demo_report["out"] / "lakeside-cruiser-report.html"
+    html_path = demo_report["out"] / "report/lakeside-cruiser-report.html"
 
     def run(page: Path, shot: Path, profile: str):
         cmd = [str(CHROMIUM), "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
@@ -290,7 +291,9 @@ def cg_data(tmp_path_factory):
     tmp = tmp_path_factory.mktemp("cg")
     spec = spec_with_cg(tmp)
     res = fake_check(spec, tmp / "out", nudge={("front-wing", "span_mm"): 3.0, ("stabilizer", "mac_mm"): 0.5})
-    return report_data(spec, tmp / "out", check_result=res)
+    project = Project(spec, tmp / "out")
+    project.memo("check.result", lambda: res)  # the project's check, as if measured in this run
+    return report_data(project)
 
 
 @pytest.fixture(scope="module")
@@ -302,7 +305,7 @@ def test_centre_of_gravity_and_static_margin_shown(cg_data, cg_files):
     b = cg_data["balance"]
     assert b["cg_x_mm"] == -250.0
     assert b["static_margin_pct"] == pytest.approx((b["neutral_point_x_mm"] + 250.0) / b["mac_mm"] * 100)
-    page = parse(cg_files["lakeside-cruiser-report.html"].decode())
+    page = parse(cg_files["report/lakeside-cruiser-report.html"].decode())
     shown = dict(page.values)
     assert shown["balance/cg_x_mm"] == "-250.0"
     for i in range(len(b["trim"])):
@@ -313,7 +316,7 @@ def test_centre_of_gravity_and_static_margin_shown(cg_data, cg_files):
 
 def test_failures_marked_by_word_and_not_only_by_colour(cg_data, cg_files):
     files = cg_files
-    html, md = files["lakeside-cruiser-report.html"].decode(), files["lakeside-cruiser-report.md"].decode()
+    html, md = files["report/lakeside-cruiser-report.html"].decode(), files["report/lakeside-cruiser-report.md"].decode()
     bad = [r for r in cg_data["check"]["rows"] if r["bad"]]
     assert {(r["part"], r["figure"]) for r in bad} == {("front-wing", "span_mm"), ("stabilizer", "mac_mm")}
     # the wing's span is off its build tolerance and its expected 800 ± 1 mm: fault and failure
@@ -331,13 +334,13 @@ def test_json_is_strict_and_pages_come_from_it_alone(cg_data, cg_files):
     """The JSON written is the dict; the pages are a function of that dict (and its drawings)."""
     from geomgen.report.render import to_html, to_markdown
 
-    text = cg_files["lakeside-cruiser-report.json"].decode()
+    text = cg_files["report/lakeside-cruiser-report.json"].decode()
     assert json.loads(text) == cg_data and "NaN" not in text
-    images = {k: cg_files[f"lakeside-cruiser-report-{k}.png"] for k in
+    images = {k: cg_files[f"report/lakeside-cruiser-report-{k}.png"] for k in
               ("top", "side", "spanwise", "sections-front-wing", "sections-stabilizer", "sections-mast")}
-    assert to_html(json.loads(text), images).encode() == cg_files["lakeside-cruiser-report.html"]
+    assert to_html(json.loads(text), images).encode() == cg_files["report/lakeside-cruiser-report.html"]
     names = {k: f"lakeside-cruiser-report-{k}.png" for k in images}
-    assert to_markdown(json.loads(text), names).encode() == cg_files["lakeside-cruiser-report.md"]
+    assert to_markdown(json.loads(text), names).encode() == cg_files["report/lakeside-cruiser-report.md"]
 
 
 def test_palette_tells_things_apart_without_colour():

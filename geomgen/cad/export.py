@@ -1,9 +1,10 @@
 """Writers, one function per format, looked up in :data:`EXPORTERS`.
 
-Each writer takes ``(parts, path, options)``: ``parts`` is a list of objects with ``.name``,
+Each writer takes ``(bodies, path, options)``: ``bodies`` is a list of objects with ``.name``,
 ``.solid`` (OCP shape) and ``.mesh(tol)`` (vertices, faces); it writes exactly one file at
-``path`` or raises ExportError, never returns a status. Callers write into a staging
-folder and move files into place only when all succeeded (:mod:`geomgen.outputs`).
+``path`` or raises ExportError, never returns a status. Importing this module registers the
+formats in the one writer table (:data:`geomgen.outputs.WRITERS`); commands write through it
+into a staging folder and move files into place only when all succeeded.
 """
 
 from __future__ import annotations
@@ -130,9 +131,22 @@ def write_3mf(parts, path: Path, options: dict) -> None:
     write_package([(p.name, *p.mesh(tol)) for p in parts], path, title=options.get("assembly_name", ""))
 
 
-#: format name -> (file suffix, writer)
+#: format name -> (file suffix, writer) of the solid and mesh formats
 EXPORTERS = {
     "step": (".step", write_step),
     "stl": (".stl", write_stl),
     "3mf": (".3mf", write_3mf),
 }
+
+
+def _register() -> None:
+    """Put the solid and mesh formats into the one writer table of :mod:`geomgen.outputs`.
+
+    Their payload is ``(bodies, options)``: bodies with ``.name``, ``.solid``, ``.mesh(tol)``."""
+    from ..outputs import register_format
+
+    for fmt in EXPORTERS:  # looked up at write time, so the table stays the one place to change
+        register_format(fmt, lambda payload, path, fmt=fmt: EXPORTERS[fmt][1](payload[0], path, payload[1]))
+
+
+_register()

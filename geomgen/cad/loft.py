@@ -132,4 +132,4 @@ def area_mm2(shape: TopoDS_Shape, eps: float = defaults.GPROP_EPS) -> float:
 
 def loft_surface(model) -> TopoDS_Shape:
     """The solid of one :class:`~geomgen.geometry.SurfaceModel`."""
-    return solid_from_skin(build_skin(model), te_open=model.spec.te_thickness > 0, name=model.name)
+    return solid_from_skin(build_skin(model), te_open=model.te_open, name=model.name)

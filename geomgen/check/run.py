@@ -1,14 +1,15 @@
-"""The check pass: build (or reuse fresh outputs), measure the files, compare, record."""
+"""``geomgen check``: build (or reuse fresh outputs), measure the files, compare, record."""
 
 from __future__ import annotations
 
-import json
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from .. import CAUTION, __version__, defaults
-from ..errors import CheckFailed, ExportError
+from .. import CAUTION, __version__
+from ..errors import CheckFailed, ExportError, SpecError
+from ..outputs import Output, output_name, output_state, stale_outputs, write_set
+from ..project import Project
 from .compare import Record, compare_part, station_records
 
 
@@ -18,12 +19,15 @@ class CheckResult:
     out_dir: Path
     built: bool
     records: list[Record]
-    parts: dict = field(default_factory=dict)  # part -> sampling, triangles, watertight, files
+    parts: dict = field(default_factory=dict)  # surface -> sampling, triangles, watertight, files
     seconds: dict = field(default_factory=dict)
-    stl_tol: float = defaults.STL_LINEAR_TOL_MM
+    stl_tol: float = 0.05
     record_files: list = field(default_factory=list)
     modified: list = field(default_factory=list)  # outputs changed since geomgen wrote them
+    stale: list = field(default_factory=list)  # outputs of this set made from another spec or version
+    notes: list = field(default_factory=list)
     balance: dict | None = None  # vortex-lattice summary when the spec has a [flight] table
+    balance_skipped: str | None = None  # why there is no balance although [flight] was given
 
     @property
     def faults(self) -> list[Record]:
@@ -40,34 +44,44 @@ class CheckResult:
 
     def as_dict(self) -> dict:
         return {"geomgen_version": __version__, "spec": self.spec_name, "out_dir": str(self.out_dir),
-                "built": self.built, "ok": self.ok, "modified_since_written": self.modified, "stl_tol_mm": self.stl_tol,
-                "parts": {k: {kk: vv for kk, vv in v.items()} for k, v in self.parts.items()},
+                "built": self.built, "ok": self.ok, "modified_since_written": self.modified,
+                "stale_outputs": self.stale, "notes": self.notes, "stl_tol_mm": self.stl_tol,
+                "parts": {k: dict(v) for k, v in self.parts.items()},
                 "records": [r.as_dict() for r in self.records], "balance": self.balance,
-                "seconds": self.seconds, "caution": CAUTION}
+                "balance_skipped": self.balance_skipped, "seconds": self.seconds, "caution": CAUTION}
 
 
-def check(spec_path, out_dir=None, *, rebuild: bool = False, stl_tol: float = defaults.STL_LINEAR_TOL_MM,
+def check(project, out_dir=None, *, rebuild: bool = False, stl_tol: float | None = None,
           write_record: bool = True, progress=None, allow_outside_files: bool = False) -> CheckResult:
-    """Measure what a build of ``spec_path`` wrote and hold it against the intended figures
-    and the spec's ``expect`` and ``check_at`` tables. Raises SpecError / GeometryError;
-    returns the result whatever the verdicts (see :attr:`CheckResult.ok`)."""
-    from ..build import build, build_info, output_names
-    from ..geometry import build_models
-    from ..geometry.figures import intended_figures
-    from ..outputs import output_state
-    from ..spec import load_spec
+    """Measure what a build of the project wrote and hold it against the intended figures and
+    the spec's ``expect`` and ``check_at`` tables; write the check record into the set.
+
+    ``project`` is a :class:`Project` or a spec path. The result is kept on the project, so a
+    report in the same run does not measure again. Raises SpecError / GeometryError /
+    CheckFailed (a file that cannot be read back); returns the result whatever the verdicts
+    (see :attr:`CheckResult.ok`)."""
+    opts = {"allow_outside_files": allow_outside_files}
+    if stl_tol is not None:
+        opts["stl_tol"] = stl_tol
+    project = Project.of(project, out_dir, **opts)
+    return project.memo("check.result", lambda: _check(project, rebuild, write_record, progress))
+
+
+def _check(project: Project, rebuild: bool, write_record: bool, progress) -> CheckResult:
+    from ..build import build, build_names, freshness_info
 
     say = progress or (lambda m: None)
     t0 = time.perf_counter()
-    spec = load_spec(spec_path, allow_outside_files)
-    models = build_models(spec)
-    out = Path(out_dir) if out_dir else Path("out") / Path(spec_path).stem
-    names = output_names(spec.name, [m.name for m in models])
-    current, modified = output_state(out, names, build_info(spec_path, stl_tol))
+    out = project.out_dir
+    names = build_names(project)
+    stale = stale_outputs(out, project.name, project.spec_sha256)
+    flat = [n for ns in names.values() for n in ns]
+    current, modified = output_state(out, flat, freshness_info(project))
     built = rebuild or not current
+    notes = []
     if built:
         say("building (outputs missing or from another spec or version)")
-        build(spec_path, out, stl_tol=stl_tol, progress=progress, allow_outside_files=allow_outside_files)
+        notes += build(project, progress=progress).notes
         modified = []
     t1 = time.perf_counter()
 
@@ -76,42 +90,54 @@ def check(spec_path, out_dir=None, *, rebuild: bool = False, stl_tol: float = de
 
     t2 = time.perf_counter()
     records, parts = [], {}
-    for m, sspec in zip(models, spec.surface):
+    for m, sspec in zip(project.models, project.spec.surface):
         say(f"measuring {m.name}")
-        step_path = out / f"{spec.name}-{m.name}.step"
-        stl_path = out / f"{spec.name}-{m.name}.stl"
+        step_name, stl_name = names[m.name]
+        step_path, stl_path = out / step_name, out / stl_name
+        ys = sorted({float(v) for v in m.planform.y} | {float(c.y) for c in sspec.check_at})
         try:
             solids = measure_step(step_path)
-        except ExportError as exc:
-            raise CheckFailed(f'surface "{m.name}": the written STEP cannot be read back ({exc}); '
+            if len(solids) != 1:
+                raise CheckFailed(f'surface "{m.name}": {step_name} holds {len(solids)} solids, expected one; '
+                                  "this is a geometry fault: rebuild before machining")
+            ms = measure_step_solid(solids[0], ys)
+        except (ExportError, ValueError, IndexError, ArithmeticError) as exc:
+            raise CheckFailed(f'surface "{m.name}": the written {step_name} cannot be measured ({exc}); '
                               "this is a geometry fault: rebuild before machining") from None
-        if len(solids) != 1:
-            raise CheckFailed(f'surface "{m.name}": {step_path.name} holds {len(solids)} solids, expected one')
-        ys = sorted({float(v) for v in m.planform.y} | {float(c.y) for c in sspec.check_at})
-        ms = measure_step_solid(solids[0], ys)
-        st = measure_stl(stl_path)
+        try:
+            st = measure_stl(stl_path)
+        except (OSError, ValueError, IndexError, ArithmeticError) as exc:
+            raise CheckFailed(f'surface "{m.name}": the written {stl_name} cannot be measured ({exc}); '
+                              "this is a geometry fault: rebuild before printing") from None
+        from ..geometry.figures import intended_figures
+
         intended = intended_figures(m).as_dict()
         expect = {k: getattr(sspec.expect, k) for k in type(sspec.expect).model_fields} if sspec.expect else {}
-        records += compare_part(m.name, intended, ms["figures"], st["figures"], stl_tol,
+        records += compare_part(m.name, intended, ms["figures"], st["figures"], project.stl_tol,
                                 {k: v for k, v in expect.items() if v is not None})
         records += station_records(m.name, m, ms["stations"], sspec.check_at)
-        parts[m.name] = {"role": m.role, "step": step_path.name, "stl": stl_path.name,
+        parts[m.name] = {"role": m.role, "step": step_name, "stl": stl_name,
                          "skin_sampling_mm": ms["sampling_mm"], "stl_triangles": st["triangles"],
                          "watertight": st["watertight"]}
     t3 = time.perf_counter()
-    res = CheckResult(spec.name, out, built, records, parts,
-                      {"build_or_reuse": t1 - t0, "kernel_import": t2 - t1, "measure": t3 - t2}, stl_tol)
-    res.modified = modified
-    if spec.flight is not None:
-        from ..hydro import analyse
+    res = CheckResult(project.name, out, built, records, parts,
+                      {"build_or_reuse": t1 - t0, "kernel_import": t2 - t1, "measure": t3 - t2}, project.stl_tol)
+    res.modified, res.stale, res.notes = modified, stale, notes
+    if project.spec.flight is not None:
+        from ..hydro import balance_of
 
-        res.balance = analyse(models, spec.flight).as_dict()
+        try:
+            res.balance = balance_of(project).as_dict()
+        except SpecError as exc:
+            res.balance_skipped = "; ".join(exc.problems)
     if write_record:
-        from ..outputs import Staging
         from .text import format_markdown
 
-        with Staging(out) as stage:
-            stage.path(f"{spec.name}-check.md").write_text(format_markdown(res))
-            stage.path(f"{spec.name}-check.json").write_text(json.dumps(res.as_dict(), indent=2, default=float) + "\n")
-            res.record_files = stage.commit({"spec": Path(spec_path).name})
+        record = [Output(output_name(project.name, "check", suffix=".md"), "text", format_markdown(res),
+                         "check record: every figure intended / measured in STEP and STL, verdicts"),
+                  Output(output_name(project.name, "check", suffix=".json"), "json", res.as_dict(),
+                         "the check record as JSON")]
+        done = write_set(out, record, project.output_info("check"))
+        res.record_files = done.files
+        res.notes += done.notes()
     return res

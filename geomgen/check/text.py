@@ -49,6 +49,9 @@ def summary_lines(res) -> list[str]:
         n_exp = sum(1 for r in res.records if r.verdict == "pass")
         lines.append(f"OK: every measured figure agrees with the intended one within the build tolerance; "
                      f"{n_exp} expectation{'s' if n_exp != 1 else ''} met.")
+    for name in res.stale:
+        lines.append(f"STALE: {name} was made from another version of the spec (or of geomgen) and does not "
+                     "match the files checked here; run the command that made it again.")
     return lines
 
 
@@ -92,6 +95,9 @@ def format_terminal(res) -> str:
     out += summary_lines(res)
     if res.balance:
         out += [""] + balance_lines(res)
+    if res.balance_skipped:
+        out += ["", f"Balance skipped: {res.balance_skipped}"]
+    out += [f"note: {n}" for n in res.notes]
     out += ["", "CAUTION: " + CAUTION]
     return "\n".join(out)
 
@@ -108,5 +114,7 @@ def format_markdown(res) -> str:
     out += ["", "## Verdict", ""] + [f"- {line}" for line in summary_lines(res)]
     if res.balance:
         out += ["", "## Balance", ""] + [f"- {line.strip()}" for line in balance_lines(res)]
+    if res.balance_skipped:
+        out += ["", "## Balance", "", f"Skipped: {res.balance_skipped}"]
     out += ["", "## Caution", "", CAUTION, ""]
     return "\n".join(out)

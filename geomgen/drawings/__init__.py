@@ -45,6 +45,7 @@ class ShopFiles(list):
         self.out_dir = out_dir
         self.surfaces = surfaces
         self.seconds = seconds
+        self.notes: list[str] = []
 
 
 def _check_positions(models, source) -> None:
@@ -59,22 +60,23 @@ def _check_positions(models, source) -> None:
         raise SpecError(problems)
 
 
-def write_shop_drawings(spec_path, out_dir, *, progress: Callable[[str], None] | None = None) -> ShopFiles:
-    """Write templates, offset tables and hot-wire profiles of every surface of the spec.
+def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None] | None = None,
+                        allow_outside_files: bool = False) -> ShopFiles:
+    """Write templates, offset tables and hot-wire profiles of every surface of the project
+    (a :class:`~geomgen.project.Project`, or a spec path) into its output set.
 
     Raises SpecError (exit 2) for a bad spec or a span position off the part, GeometryError
     (exit 3) for geometry that cannot be made (e.g. a kerf offset that folds), ExportError
     (exit 3) when a file cannot be written. Nothing is written unless everything is.
     """
-    from ..geometry import build_models
-    from ..outputs import Staging, spec_digest
-    from ..spec import load_spec
+    from ..outputs import Output, output_name, write_set
+    from ..project import Project
 
+    project = Project.of(project, out_dir, allow_outside_files=allow_outside_files)
     t0 = time.perf_counter()
     say = progress or (lambda msg: None)
-    spec = load_spec(spec_path)
-    models = build_models(spec)
-    _check_positions(models, spec_path)
+    models = project.models
+    _check_positions(models, project.source)
 
     plans = []  # everything computed (and refused) before a file is opened
     for m in models:
@@ -84,45 +86,60 @@ def write_shop_drawings(spec_path, out_dir, *, progress: Callable[[str], None] |
         tables = [offsets.offset_rows(c, shop.offset_pct) for c in cuts]
         plans.append((m, shop, cuts, tables, hotwire.panels_of(m)))
 
-    summaries = []
-    info = {"spec": Path(spec_path).name, "spec_sha256": spec_digest(spec_path), "outputs": "shop-drawings"}
-    with Staging(out_dir) as stage:
-        for m, shop, cuts, tables, panels in plans:
-            stem = f"{spec.name}-{m.name}"
-            side = upper_side(m)
-            common = dict(spec_name=spec.name, model_name=m.name, side=side)
-            layout = dict(spacing=shop.template_spacing_mm, height=shop.label_height_mm)
+    set_name = project.name
+    summaries, outputs = [], []
+    for m, shop, cuts, tables, panels in plans:
+        side = upper_side(m)
+        common = dict(spec_name=set_name, model_name=m.name, side=side)
+        layout = dict(spacing=shop.template_spacing_mm, height=shop.label_height_mm)
+        name = lambda *w, suffix: output_name(set_name, m.name, *w, suffix=suffix, folder="drawings")
+        outputs += [
+            Output(name("templates", suffix=".dxf"), "file",
+                   lambda p, cuts=cuts, common=common, layout=layout:
+                   templates.write_templates_dxf(cuts, p, **common, **layout),
+                   f"{m.name}: 1:1 section templates (DXF, mm)"),
+            Output(name("templates", suffix=".svg"), "file",
+                   lambda p, cuts=cuts, common=common, layout=layout, shop=shop:
+                   svg.write_templates_svg(cuts, p, **common, **layout, margin=shop.template_margin_mm),
+                   f"{m.name}: 1:1 section templates to print at 100 % (check the rulers)"),
+            Output(name("offsets", suffix=".csv"), "file",
+                   lambda p, tables=tables, common=common: offsets.write_offsets_csv(tables, p, **common),
+                   f"{m.name}: offset table, heights above and below the chord line (mm)")]
+        for pn in panels:
+            for suffix, writer, what in ((".txt", hotwire.write_panel_txt, "points"),
+                                         (".dxf", hotwire.write_panel_dxf, "DXF")):
+                outputs.append(Output(
+                    name("hotwire", pn.tag, suffix=suffix), "file",
+                    lambda p, pn=pn, writer=writer, side=side, m=m:
+                    writer(pn, p, spec_name=set_name, side=side, mirrored=bool(m.mirror)),
+                    f"{m.name}: hot-wire end paths of one foam panel ({what}, kerf offset)"))
+        summaries.append(SurfaceSummary(m.name, len(cuts), sum(len(t.x_pct) for t in tables), len(panels),
+                                        shop.kerf_mm, max((p.mid_deviation for p in panels), default=0.0)))
+    res = ShopFiles([], set_name, project.out_dir, summaries, 0.0)
+    res.extend(project.out_dir / o.name for o in outputs)
+    res.seconds = time.perf_counter() - t0
+    outputs.append(Output(output_name(set_name, "drawings", suffix=".txt"), "text",
+                          lambda: format_shop_summary(res, for_file=True), "what the drawings command wrote, per surface"))
+    done = write_set(project.out_dir, outputs, project.output_info("drawings"), say)
+    res[:] = done.files  # the summary file too
+    res.notes = done.notes()
+    res.seconds = time.perf_counter() - t0
+    return res
 
-            name = f"{stem}-templates.dxf"
-            say(f"writing {name}")
-            templates.write_templates_dxf(cuts, stage.path(name), **common, **layout)
-            name = f"{stem}-templates.svg"
-            say(f"writing {name}")
-            svg.write_templates_svg(cuts, stage.path(name), **common, **layout, margin=shop.template_margin_mm)
-            name = f"{stem}-offsets.csv"
-            say(f"writing {name}")
-            offsets.write_offsets_csv(tables, stage.path(name), **common)
-            for p in panels:
-                for suffix, writer in ((".txt", hotwire.write_panel_txt), (".dxf", hotwire.write_panel_dxf)):
-                    name = f"{stem}-hotwire-{p.tag}{suffix}"
-                    say(f"writing {name}")
-                    writer(p, stage.path(name), spec_name=spec.name, side=side, mirrored=bool(m.mirror))
-            summaries.append(SurfaceSummary(m.name, len(cuts), sum(len(t.x_pct) for t in tables), len(panels),
-                                            shop.kerf_mm, max((p.mid_deviation for p in panels), default=0.0)))
-        files = stage.commit(info)
-    return ShopFiles(files, spec.name, Path(out_dir), summaries, time.perf_counter() - t0)
 
-
-def format_shop_summary(res: ShopFiles) -> str:
-    """What was written, per surface, as aligned text (for the CLI)."""
-    lines = [f"geomgen {__version__}: shop drawings of '{res.spec_name}' into {res.out_dir} "
-             f"({len(res)} files, {res.seconds:.1f} s)", ""]
+def format_shop_summary(res: ShopFiles, for_file: bool = False) -> str:
+    """What was written, per surface, as aligned text (for the CLI; ``for_file``: the copy in
+    the set, without time or folder, so the same spec gives the same bytes)."""
+    head = f"geomgen {__version__}: shop drawings of '{res.spec_name}'"
+    lines = [head if for_file else f"{head} into {res.out_dir} ({len(res)} files, {res.seconds:.1f} s)", ""]
     lines.append(f"{'surface':<16} {'templates':>9} {'offset rows':>11} {'hot-wire panels':>15} "
                  f"{'kerf mm':>8} {'ruled cut dev. mm':>17}")
     for s in res.surfaces:
         lines.append(f"{s.name:<16} {s.templates:>9} {s.offset_rows:>11} {s.panels:>15} {s.kerf_mm:>8.2f} "
                      f"{s.worst_ruled_mm:>17.3f}")
-    lines += ["", "files:"] + [f"  {Path(p).name}" for p in res]
+    lines += ["", "files:"] + [f"  {Path(p).relative_to(res.out_dir) if Path(p).is_relative_to(res.out_dir) else p}"
+                               for p in res]
+    lines += [f"note: {n}" for n in getattr(res, "notes", [])]
     lines += ["", "Templates are 1:1 in mm: print the SVG at 100 % and check its rulers.",
               "'ruled cut dev.' is how far a straight hot-wire cut between a panel's ends strays from the "
               "intended surface halfway along it; where it is too large, add cut positions "

@@ -250,7 +250,7 @@ def panels_of(model) -> list[Panel]:
         return []
     cuts = shop.hotwire_cuts or [float(v) for v in model.planform.y]
     r = 0.5 * shop.kerf_mm
-    sharp = model.spec.te_thickness == 0.0
+    sharp = not model.te_open
     out = []
     for ya, yb in zip(cuts[:-1], cuts[1:]):
         ends = []

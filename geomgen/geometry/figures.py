@@ -114,7 +114,7 @@ def surface_area(model) -> float:
     """Total surface of the solid, mm²: skin, trailing-edge strip and end caps."""
     skin = model.skin
     total = skin.area()
-    if model.spec.te_thickness > 0:  # ruled strip between the skin's two edge rows
+    if model.te_open:  # ruled strip between the skin's two edge rows
         v0, v1 = skin.v_range
         xg, wg = np.polynomial.legendre.leggauss(8)
         kn = np.unique(skin.tv)

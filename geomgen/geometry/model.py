@@ -41,7 +41,7 @@ def _station_key(st) -> tuple:
 
 def _check_trailing_edge(model: SurfaceModel, where) -> list[str]:
     """Refuse a trailing edge thicker than half the section's thickness where the ramp starts."""
-    te = model.spec.te_thickness
+    te = model.te_thickness
     out = []
     if te == 0:
         return out

@@ -67,6 +67,31 @@ class SurfaceModel:
             self.tip_length = spec.tip_length or defaults.ROUND_TIP_LENGTH_OF_CHORD * float(planform("chord", last))
         self._theta_max = math.acos(spec.tip_end)
 
+    # -- derived facts (read these, not the spec fields) ------------------------------
+    @property
+    def te_thickness(self) -> float:
+        """Finished trailing-edge thickness at the root, mm (0 = sharp, closed edge)."""
+        return float(self.spec.te_thickness)
+
+    @property
+    def te_open(self) -> bool:
+        """True if the trailing edge is a finite flat (a ruled strip closes the skin)."""
+        return self.te_thickness > 0.0
+
+    def with_te_thickness(self, te_mm: float) -> "SurfaceModel":
+        """The same surface with another finished trailing edge (e.g. thickened to print).
+
+        Shares the planform and base sections; refusals of the new edge are the caller's
+        (:func:`geomgen.geometry.model.trailing_edge_problems`)."""
+        return SurfaceModel(self.spec.model_copy(update={"te_thickness": float(te_mm)}), self.planform,
+                            self._sections)
+
+    def te_too_thick(self, where) -> list[tuple[float, float, float]]:
+        """(y, limit mm, thickness at the ramp start mm) where the finished edge is too thick."""
+        from .model import _check_trailing_edge
+
+        return _check_trailing_edge(self, where)
+
     @property
     def skin(self):
         """The B-spline skin of this surface (built once; see :mod:`geomgen.geometry.skin`)."""
@@ -131,7 +156,7 @@ class SurfaceModel:
 
     def _section_uncached(self, y: float) -> Section:
         chord = float(self.chord(y))
-        te = self.spec.te_thickness * float(self.tip_factor(y))  # the edge thins into a rounded tip
+        te = self.te_thickness * float(self.tip_factor(y))  # the edge thins into a rounded tip
         return self.base_section(y).with_te_thickness(te / chord)
 
     def section(self, y: float) -> Section:

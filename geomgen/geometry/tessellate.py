@@ -136,3 +136,14 @@ def _orient(verts: np.ndarray, faces: np.ndarray) -> np.ndarray:
     p0, p1, p2 = verts[faces[:, 0]], verts[faces[:, 1]], verts[faces[:, 2]]
     vol = np.einsum("ij,ij->i", p0, np.cross(p1, p2)).sum() / 6.0
     return faces[:, ::-1].copy() if vol < 0 else faces
+
+
+def surface_mesh(model, tol: float = 0.05):
+    """(vertices (n, 3) mm, faces (m, 3)) of a surface model's skin, chordal deviation ``tol`` mm.
+
+    Starts coarse (every third loft section and the creases) and lets the chordal test
+    refine where needed."""
+    from ..sections.base import Section
+
+    v0 = np.concatenate([seg[::3] for seg in model.loft_y()] + [model.loft_breaks()])
+    return tessellate(model.skin, model.te_open, Section.loop_parameter(10), v0, tol)

@@ -3,10 +3,11 @@
 Pure numpy/scipy (no CAD kernel). Entry points: :func:`analyse` and :func:`format_hydro`.
 """
 
-from .analysis import analyse, analyse_spec, neutral_point
+from .analysis import analyse, analyse_spec, balance_of, neutral_point
 from .text import format_hydro
 from .results import HydroResult, Lateral, Loading, SurfaceHydro, Takeoff, TrimPoint
+from .whatif import shim_trim_change
 from .water import G, ITTC_2011, Water, water
 
-__all__ = ["analyse", "analyse_spec", "neutral_point", "format_hydro", "HydroResult", "SurfaceHydro", "TrimPoint", "Takeoff", "Lateral",
+__all__ = ["shim_trim_change", "analyse", "balance_of", "analyse_spec", "neutral_point", "format_hydro", "HydroResult", "SurfaceHydro", "TrimPoint", "Takeoff", "Lateral",
            "Loading", "Water", "water", "G", "ITTC_2011"]

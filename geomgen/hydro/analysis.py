@@ -322,3 +322,19 @@ def analyse_spec(spec, **kwargs) -> HydroResult:
     except SpecError as exc:
         src = getattr(spec, "_source", "<spec>")
         raise SpecError([f"{src}: surface: {p}" for p in exc.problems]) from None
+
+
+def balance_of(project, **kwargs) -> HydroResult:
+    """The analysis of a :class:`~geomgen.project.Project` with its ``[flight]`` table, solved
+    once per run and keyword set (``balance``, ``check``, ``report`` and ``parts`` share it).
+
+    Raises SpecError naming the spec file when the set cannot be balanced."""
+    from ..errors import SpecError
+
+    def solve() -> HydroResult:
+        try:
+            return analyse(project.models, project.spec.flight, **kwargs)
+        except SpecError as exc:
+            raise SpecError([f"{project.source}: surface: {p}" for p in exc.problems]) from None
+
+    return project.memo(("hydro.balance", tuple(sorted(kwargs.items()))), solve)

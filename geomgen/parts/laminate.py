@@ -12,21 +12,21 @@ from .core import plan_core
 from .mould import parting_skin, plate_box, root_frame
 from ..cad.loft import solid_from_skin, volume_mm3
 from ..cad.ops import centroid, checked, fuse, make_tool, plane_face, prepared, skin_face, split, transformed
-from .output import Output
+from .output import shop_output
 
 
 def _matrix(B, t) -> list[list[float]]:
     return np.vstack([np.column_stack([B, t]), [0, 0, 0, 1]]).tolist()
 
 
-def laminate_outputs(model, solid, stem: str, say) -> tuple[list[Output], dict]:
+def laminate_outputs(model, solid, name_of, say) -> tuple[list, dict]:
     lam = model.spec.laminate
     name = model.name
     skin = model.skin
     rf = root_frame(model, skin)
     machine = lam.pose == "machine"
     pose = {h: (rf.pose(h) if machine else (np.eye(3), np.zeros(3))) for h in ("upper", "lower")}
-    outs: list[Output] = []
+    outs: list = []
     rep: dict = {"thickness": lam.thickness, "pose": lam.pose}
     if lam.core:
         what = f'surface "{name}" laminate core'
@@ -46,9 +46,9 @@ def laminate_outputs(model, solid, stem: str, say) -> tuple[list[Output], dict]:
                        "chord_from": [min(x["core_from"] for x in st), max(x["core_from"] for x in st)],
                        "chord_to": [min(x["core_to"] for x in st), max(x["core_to"] for x in st)],
                        "laminate_min_mm": min(x["laminate_min_mm"] for x in st),
-                       "files": [f"{stem}-core.step", f"{stem}-core.stl"]}
-        outs += [Output(f"{stem}-core.step", "step", [(f"{name}-core", core_p)]),
-                 Output(f"{stem}-core.stl", "stl", meshes=[("core", verts, faces)])]
+                       "files": [name_of("core", suffix=".step"), name_of("core", suffix=".stl")]}
+        outs += [shop_output(name_of("core", suffix=".step"), "step", [(f"{name}-core", core_p)]),
+                 shop_output(name_of("core", suffix=".stl"), "stl", meshes=[("core", verts, faces)])]
     if lam.mould:
         what = f'surface "{name}" laminate mould'
         say(f"splitting the mould halves of {name}")
@@ -81,8 +81,8 @@ def laminate_outputs(model, solid, stem: str, say) -> tuple[list[Output], dict]:
                 body = checked(fuse([body, plate], f"{what} {half} flange"), f"{what} {half} flange")[0]
             B, t = pose[half]
             posed = transformed(body, B, t, f"{what} {half}")
-            fname = f"{stem}-mould-{half}.step"
-            outs.append(Output(fname, "step", [(f"{name}-mould-{half}", posed)]))
+            fname = name_of("mould", half, suffix=".step")
+            outs.append(shop_output(fname, "step", [(f"{name}-mould-{half}", posed)]))
             rep["mould"]["halves"].append({"half": half, "volume_mm3": vh[0 if half == "upper" else 1],
                                            "plate_mm3": plate_v,
                                            "datum_to_file": _matrix(B, t), "file": fname})

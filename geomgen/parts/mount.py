@@ -267,38 +267,11 @@ def _decalage(spec, model, angle):
     return before, after
 
 
-def trim_change(spec, surface: str, angle: float) -> str | None:
-    """What a shim does in trimmed flight, from the project's hydrodynamics (lift = weight at
-    the middle speed of ``[flight]``): change of board attitude, of the front wing's angle to
-    the water, and of where the weight must act. None without a ``[flight]`` table."""
-    if spec.flight is None:
-        return None
-    from ..errors import GeomgenError
-    from ..hydro import analyse_spec
+def plan_shims(model, ms, spec, flight_words: dict | None = None) -> tuple[list[ShimPlan], list[str]]:
+    """Wedges for the shims of MountSpec ``ms`` with the words that explain each one's sign.
 
-    surf = [s.model_copy(update={"incidence": s.incidence + angle}) if s.name == surface else s
-            for s in spec.surface]
-    try:
-        a = analyse_spec(spec)
-        b = analyse_spec(spec.model_copy(update={"surface": surf}))
-    except GeomgenError:
-        return None
-    if not a.trim or not b.trim:
-        return None
-    k = len(a.trim) // 2
-    ta, tb = a.trim[k], b.trim[k]
-    d_att = tb.attitude_deg - ta.attitude_deg
-    wing = next((s for s in spec.surface if s.role == "wing"), None)
-    d_wing = d_att + (angle if wing is not None and wing.name == surface else 0.0)
-    d_cp = tb.cp_x_mm - ta.cp_x_mm
-    return (f"In trimmed flight at {ta.speed_kmh:g} km/h (this spec's hydrodynamics, lift = weight): the board "
-            f"rides {abs(d_att):.2f}° more nose-{'up' if d_att > 0 else 'down'}, the front wing's angle of attack "
-            f"changes by {d_wing:+.2f}°, and the rider's weight must act {abs(d_cp):.0f} mm further "
-            f"{'aft' if d_cp > 0 else 'forward'} to balance.")
-
-
-def plan_shims(model, ms, spec) -> tuple[list[ShimPlan], list[str]]:
-    """Wedges for the shims of MountSpec ``ms`` with the words that explain each one's sign."""
+    ``flight_words``: shim angle -> what it does in trimmed flight (from the hydrodynamics,
+    worked out by the caller; see :func:`geomgen.hydro.shim_trim_change`)."""
     out, problems = [], []
     x0, x1 = ms.pad_x
     xc = 0.5 * (x0 + x1)
@@ -341,7 +314,7 @@ def plan_shims(model, ms, spec) -> tuple[list[ShimPlan], list[str]]:
         else:
             words.append(f"The front wing's angle to the fuselage and board does not change; its angle to the "
                          f"{what} (decalage) {'grows' if grows else 'shrinks'} by {abs(a):g}°{dec_txt}.")
-        flight = trim_change(spec, model.name, a)
+        flight = (flight_words or {}).get(a)
         if flight:
             words.append(flight)
         words.append("More decalage: the foil tends to pitch nose up and lift earlier, at lower speed; less: the "

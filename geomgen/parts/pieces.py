@@ -16,7 +16,7 @@ from .printing import choose_pose, plan_printing, printing_model
 from ..cad.loft import solid_from_skin, volume_mm3
 from ..cad.ops import bbox, common, cut_features, make_tool, prepared, sub_skin, transformed
 from ..cad.mesh import mesh
-from .output import Output
+from .output import shop_output
 
 
 #: A printed edge thinner than this is one line of a common nozzle or less (common practice,
@@ -32,7 +32,7 @@ def _posed(shape, A, t, what):
     return transformed(s1, np.eye(3), shift, what), t + shift
 
 
-def print_outputs(model, stem: str, say) -> tuple[list[Output], dict]:
+def print_outputs(model, name_of, say) -> tuple[list, dict]:
     ps = model.spec.printing
     name = model.name
     what = f'surface "{name}" printing'
@@ -53,7 +53,7 @@ def print_outputs(model, stem: str, say) -> tuple[list[Output], dict]:
     s = plan.scale
     F = Frame.of(pm)
     say(f"cutting the printed pieces of {name}")
-    te_open = pm.spec.te_thickness > 0
+    te_open = pm.te_open
     v_whole = volume_mm3(solid_from_skin(pm.skin, te_open=te_open, name=name))
     solids, vols, removed = [], [], 0.0
     for pc in plan.pieces:
@@ -78,14 +78,14 @@ def print_outputs(model, stem: str, say) -> tuple[list[Output], dict]:
         posed, t = _posed(sh, A, -A @ F.position, f"{what} {tag}")
         v, f = mesh(posed, ps.mesh_tol, f"{what} {tag}")
         lo, hi = bbox(posed)
-        base = f"{stem}-{tag}"
-        outs += [Output(f"{base}.step", "step", [(f"{name}-{tag}", posed)]),
-                 Output(f"{base}.stl", "stl", meshes=[(tag, v, f)]),
-                 Output(f"{base}.3mf", "3mf", meshes=[(f"{name}-{tag}", v, f)])]
+        files = [name_of(tag, suffix=sfx) for sfx in (".step", ".stl", ".3mf")]
+        outs += [shop_output(files[0], "step", [(f"{name}-{tag}", posed)]),
+                 shop_output(files[1], "stl", meshes=[(tag, v, f)]),
+                 shop_output(files[2], "3mf", meshes=[(f"{name}-{tag}", v, f)])]
         pieces.append({"index": pc.index + 1, "span": list(pc.span), "pose": pc.pose, "fits": pc.fits,
                        "size_printed_mm": (hi - lo).tolist(), "volume_design_mm3": vol,
                        "volume_printed_mm3": vol * s**3, "datum_to_print": _matrix(A, t),
-                       "files": [f"{base}.step", f"{base}.stl", f"{base}.3mf"]})
+                       "files": files})
     notes = []
     if plan.te_mm * s < THIN_PRINTED_EDGE_MM:
         notes.append(f"the printed trailing edge is {plan.te_mm * s:.2f} mm, thinner than one line of a common "
@@ -95,7 +95,7 @@ def print_outputs(model, stem: str, say) -> tuple[list[Output], dict]:
            "volume_whole_mm3": v_whole, "volume_removed_mm3": removed, "volume_pieces_mm3": sum(vols), "balance_error_rel": err / v_whole,
            "build_volume": list(ps.build_volume) if ps.build_volume else None, "mesh_tol": ps.mesh_tol}
     if ps.joint_test and plan.joints:
-        outs += _joint_test(pm, plan, solids, F, stem, what, rep)
+        outs += _joint_test(pm, plan, solids, F, name_of, what, rep)
     return outs, rep
 
 
@@ -132,7 +132,7 @@ def _matrix(A, t) -> list[list[float]]:
     return np.vstack([np.column_stack([A, t]), [0, 0, 0, 1]]).tolist()
 
 
-def _joint_test(pm, plan, pieces, F, stem, what, rep) -> list[Output]:
+def _joint_test(pm, plan, pieces, F, name_of, what, rep) -> list:
     """A slice across the innermost joint, its two halves standing joint face up."""
     ps = pm.spec.printing
     s = plan.scale
@@ -169,7 +169,7 @@ def _joint_test(pm, plan, pieces, F, stem, what, rep) -> list[Output]:
         bodies.append((nm, posed))
         v, f = mesh(posed, ps.mesh_tol, tw)
         meshes.append((nm, v, f))
-    base = f"{stem}-joint-test"
-    rep["joint_test"] = {"y": yj, "span": [a, b], "files": [f"{base}.step", f"{base}.stl", f"{base}.3mf"]}
-    return [Output(f"{base}.step", "step", bodies), Output(f"{base}.stl", "stl", meshes=meshes),
-            Output(f"{base}.3mf", "3mf", meshes=meshes)]
+    files = [name_of("joint-test", suffix=sfx) for sfx in (".step", ".stl", ".3mf")]
+    rep["joint_test"] = {"y": yj, "span": [a, b], "files": files}
+    return [shop_output(files[0], "step", bodies), shop_output(files[1], "stl", meshes=meshes),
+            shop_output(files[2], "3mf", meshes=meshes)]

@@ -47,15 +47,11 @@ class PrintPlan:
 
 def printing_model(model: SurfaceModel, ps) -> tuple[SurfaceModel, list[str]]:
     """The model with its trailing edge raised to ``min_te`` printed mm (if asked)."""
-    from ..geometry.model import _check_trailing_edge
-
-    te = model.spec.te_thickness
-    if ps.min_te is None or ps.min_te / ps.scale <= te:
+    if ps.min_te is None or ps.min_te / ps.scale <= model.te_thickness:
         return model, []
-    new = SurfaceModel(model.spec.model_copy(update={"te_thickness": ps.min_te / ps.scale}),
-                       model.planform, model._sections)
+    new = model.with_te_thickness(ps.min_te / ps.scale)
     where = sorted({float(abs(v)) for seg in new.loft_y() for v in seg})
-    bad = _check_trailing_edge(new, where)
+    bad = new.te_too_thick(where)
     if bad:
         y, limit, _ = min(bad, key=lambda b: b[1])
         return model, [f'surface "{model.name}" printing min_te: {ps.min_te:g} printed mm ({ps.min_te / ps.scale:.2f} '
@@ -344,4 +340,4 @@ def plan_printing(pm: SurfaceModel, ps, mount_tools=(), mount_holes=()) -> Print
                    0.5 * sp["channel_diameter"] / s) for sp in spars]
     loc_tools, joints, p3 = plan_locators(pm, ps, cuts, spar_lines, mount_holes)
     tools = list(mount_tools) + spar_tools + loc_tools
-    return PrintPlan(pm, s, bounds, pieces, tools, joints, spars, pm.spec.te_thickness, problems + p2 + p3, how)
+    return PrintPlan(pm, s, bounds, pieces, tools, joints, spars, pm.te_thickness, problems + p2 + p3, how)

@@ -1,13 +1,13 @@
 """3D shop parts at the CAD edge: mounting pad and holes, incidence shims, printable pieces,
 cores and mould halves, each built, checked and meshed before anything is written, then
-written together through one :class:`geomgen.outputs.Staging`.
+written together through the one writer table and whole-or-nothing commit of
+:mod:`geomgen.outputs`.
 
 Entry point: :func:`write_shop_parts`; the summary text: :func:`format_parts_summary`.
 """
 
 from __future__ import annotations
 
-import json
 import time
 from pathlib import Path
 from typing import Callable
@@ -26,30 +26,30 @@ class ShopParts(list):
     def __init__(self, files, report: dict, out_dir: Path, seconds: float):
         super().__init__(files)
         self.report, self.out_dir, self.seconds = report, Path(out_dir), seconds
+        self.notes: list[str] = []
 
 
-def report_name(spec_name: str) -> str:
-    return f"{spec_name}-shop-parts.json"
-
-
-def write_shop_parts(spec_path, out_dir, *, progress: Callable[[str], None] | None = None) -> ShopParts:
+def write_shop_parts(project, out_dir=None, *, progress: Callable[[str], None] | None = None,
+                     allow_outside_files: bool = False) -> ShopParts:
     """Build the shop parts of every surface with a ``[surface.mount]``, ``[surface.printing]`` or
-    ``[surface.laminate]`` table and write them into ``out_dir``, all or nothing.
+    ``[surface.laminate]`` table and write them into the project's output set, all or nothing.
 
-    Raises SpecError (exit 2), GeometryError or ExportError (exit 3); nothing is written then.
+    ``project``: a :class:`~geomgen.project.Project` or a spec path. Raises SpecError (exit 2),
+    GeometryError or ExportError (exit 3); nothing is written then.
     """
-    from ..build import Part
-    from ..geometry import build_models
-    from ..outputs import Staging, spec_digest
-    from ..spec import load_spec
+    from ..cad.shape import shape_of
+    from ..hydro import shim_trim_change
+    from ..outputs import Output, output_name, write_set
+    from ..project import Project
     from .laminate import laminate_outputs
     from .mount_solids import mount_outputs
+    from .output import namer
     from .pieces import print_outputs
 
+    project = Project.of(project, out_dir, allow_outside_files=allow_outside_files)
     t0 = time.perf_counter()
     say = progress or (lambda msg: None)
-    spec = load_spec(spec_path)
-    src = str(spec_path)
+    spec, src = project.spec, project.source
     problems = []
     for i, sf in enumerate(spec.surface):
         if sf.mount is not None and sf.orientation != "horizontal":
@@ -61,35 +61,40 @@ def write_shop_parts(spec_path, out_dir, *, progress: Callable[[str], None] | No
                         "nothing to make")
     if problems:
         raise SpecError(problems)
-    models = {m.name: m for m in build_models(spec)}
-    outputs, surfaces = [], []
+    outputs, surfaces, notes = [], [], []
     for sf in todo:
-        model = models[sf.name]
-        stem = f"{spec.name}-{sf.name}"
+        model = project.model(sf.name)
+        name_of = namer(project.name, sf.name)
         rep = {"name": sf.name, "role": sf.role}
         solid = None
         if sf.mount or sf.laminate:
             say(f"lofting {sf.name}")
-            solid = Part(model).solid
+            solid = shape_of(project, sf.name).solid
         if sf.mount:
-            outs, rep["mount"], _ = mount_outputs(model, solid, spec, stem, say)
+            words = {}
+            for sh in sf.mount.shim:
+                words[sh.angle], why = shim_trim_change(project, sf.name, sh.angle)
+                if why and why not in notes:
+                    notes.append(why)
+            outs, rep["mount"], _ = mount_outputs(model, solid, spec, name_of, say, words)
             outputs += outs
         if sf.printing:
-            outs, rep["printing"] = print_outputs(model, stem, say)
+            outs, rep["printing"] = print_outputs(model, name_of, say)
             outputs += outs
         if sf.laminate:
-            outs, rep["laminate"] = laminate_outputs(model, solid, stem, say)
+            outs, rep["laminate"] = laminate_outputs(model, solid, name_of, say)
             outputs += outs
         surfaces.append(rep)
     report = {"written_by": f"geomgen {__version__}", "spec": spec.name, "frame": "datum: x aft, y starboard, z up; mm",
-              "surfaces": surfaces}
-    with Staging(out_dir) as stage:
-        for out in outputs:
-            say(f"writing {out.name}")
-            out.write(stage.path(out.name))
-        rname = report_name(spec.name)
-        report["seconds"] = round(time.perf_counter() - t0, 2)
-        stage.path(rname).write_text(json.dumps(report, indent=1, default=float) + "\n")
-        files = stage.commit({"spec": Path(spec_path).name, "spec_sha256": spec_digest(spec_path),
-                              "made_by": "shop parts"})
-    return ShopParts(files, report, Path(out_dir), time.perf_counter() - t0)
+              "surfaces": surfaces, "notes": notes}
+    res = ShopParts([project.out_dir / o.name for o in outputs], report, project.out_dir, 0.0)
+    res.seconds = time.perf_counter() - t0
+    outputs += [Output(output_name(project.name, "parts", suffix=".json"), "json", report,
+                       "every shop part: sizes, volumes, poses (datum to file matrices), checks"),
+                Output(output_name(project.name, "parts", suffix=".txt"), "text", lambda: format_parts_summary(res, for_file=True),
+                       "what the parts command wrote, per surface")]
+    done = write_set(project.out_dir, outputs, project.output_info("parts"), say)
+    res[:] = done.files  # the report and the summary too
+    res.notes = done.notes()
+    res.seconds = time.perf_counter() - t0
+    return res

@@ -1,5 +1,5 @@
 """The shop-parts summary as text, from the report that :func:`geomgen.parts.write_shop_parts`
-returns and writes as ``<spec>-shop-parts.json``."""
+returns and writes as ``report/<set>-parts.json``."""
 
 from __future__ import annotations
 
@@ -88,13 +88,14 @@ def _laminate(lam: dict) -> list[str]:
     return out
 
 
-def format_parts_summary(res) -> str:
+def format_parts_summary(res, for_file: bool = False) -> str:
     """Text summary of a shop-parts run: ``res`` is what ``write_shop_parts`` returned, its report
     dict, or the path of the JSON report."""
     files = list(res) if isinstance(res, list) else []
     rep = getattr(res, "report", None) or (json.loads(Path(res).read_text()) if isinstance(res, (str, Path)) else res)
-    where = f" into {res.out_dir}" if hasattr(res, "out_dir") else ""
-    lines = [f"{rep['written_by']}: shop parts of '{rep['spec']}'{where} in {rep.get('seconds', 0):.1f} s",
+    where = f" into {res.out_dir}" if hasattr(res, "out_dir") and not for_file else ""
+    took = "" if for_file else f" in {getattr(res, 'seconds', rep.get('seconds', 0)):.1f} s"
+    lines = [f"{rep['written_by']}: shop parts of '{rep['spec']}'{where}{took}",
              f"frame: {rep['frame']}", ""]
     for s in rep["surfaces"]:
         lines.append(f"{s['name']} ({s['role']})")
@@ -106,6 +107,10 @@ def format_parts_summary(res) -> str:
             lines += _laminate(s["laminate"])
         lines.append("")
     if files:
-        lines += ["written:"] + [f"  {p}" for p in files] + [""]
+        rel = lambda p: Path(p).relative_to(res.out_dir) if for_file and hasattr(res, "out_dir") else p
+        lines += ["written:"] + [f"  {rel(p)}" for p in files] + [""]
+    notes = list(rep.get("notes", [])) + list(getattr(res, "notes", []))
+    if notes:
+        lines += [f"note: {n}" for n in notes] + [""]
     lines.append("CAUTION: " + CAUTION)
     return "\n".join(lines)

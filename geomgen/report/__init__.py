@@ -14,7 +14,7 @@ from pathlib import Path
 
 from .data import REPORT_FORMAT, report_data
 
-__all__ = ["write_report", "report_data", "render_files", "REPORT_FORMAT"]
+__all__ = ["write_report", "report_data", "render_files", "ReportFiles", "REPORT_FORMAT"]
 
 
 def _slug(key: str) -> str:
@@ -22,53 +22,69 @@ def _slug(key: str) -> str:
 
 
 def render_files(data: dict, progress=None) -> dict:
-    """File name -> bytes of every report file rendered from ``data`` (nothing written)."""
+    """Output name -> bytes of every report file rendered from ``data`` (nothing written)."""
+    from ..outputs import output_name
     from .plots import render_all
     from .render import to_html, to_markdown
 
     name = data["spec"]["name"]
     images = render_all(data, progress)
-    files = {f"{name}-report-{_slug(k)}.png": png for k, png in images.items()}
-    image_files = {k: f"{name}-report-{_slug(k)}.png" for k in images}
-    files[f"{name}-report.json"] = (json.dumps(data, indent=1, ensure_ascii=False, allow_nan=False) + "\n").encode()
-    files[f"{name}-report.html"] = to_html(data, images).encode("utf-8")
-    files[f"{name}-report.md"] = to_markdown(data, image_files).encode("utf-8")
+    image_names = {k: output_name(name, "report", _slug(k), suffix=".png") for k in images}
+    files = {image_names[k]: png for k, png in images.items()}
+    # the Markdown page sits beside its images: link them by file name
+    image_files = {k: Path(v).name for k, v in image_names.items()}
+    files[output_name(name, "report", suffix=".json")] = \
+        (json.dumps(data, indent=1, ensure_ascii=False, allow_nan=False) + "\n").encode()
+    files[output_name(name, "report", suffix=".html")] = to_html(data, images).encode("utf-8")
+    files[output_name(name, "report", suffix=".md")] = to_markdown(data, image_files).encode("utf-8")
     return files
 
 
-def write_report(spec_path, out_dir, *, progress=None, check_result=None, hydro=None) -> list[Path]:
-    """Check ``spec_path``'s outputs in ``out_dir`` (building them if missing or stale), analyse
-    the balance and write the design report there: ``<set>-report.html`` (self-contained),
-    ``<set>-report.md`` with its PNG drawings, and ``<set>-report.json`` (the data both pages
-    are rendered from). All files are written whole or not at all, with the manifest.
+class ReportFiles(list):
+    """The written paths (HTML first), with ``ok``: False when the check found a fault or a
+    failed expectation (the command exits 1 then, like ``check``)."""
+
+    def __init__(self, files, ok: bool, notes: list[str]):
+        super().__init__(files)
+        self.ok, self.notes = ok, notes
+
+
+def write_report(project, out_dir=None, *, progress=None, allow_outside_files: bool = False) -> ReportFiles:
+    """Check the project's outputs (building them if missing or stale), analyse the balance and
+    write the design report into the output set: ``report/<set>-report.html`` (self-contained),
+    ``report/<set>-report.md`` with its PNG drawings, and ``report/<set>-report.json`` (the
+    data both pages are rendered from). Written whole or not at all, with the manifest.
 
     Parameters
     ----------
-    spec_path : path of the spec (TOML)
-    out_dir : output folder
+    project : :class:`~geomgen.project.Project` or path of the spec (TOML)
+    out_dir : output folder (a path ``project`` only; default ``out/<spec stem>``)
     progress : callable(str), optional
         Receives short progress messages.
-    check_result, hydro : optional
-        A :class:`CheckResult` / :class:`HydroResult` already computed for this spec and folder.
 
     Returns
     -------
-    list of Path
-        The files written, HTML first.
+    ReportFiles
+        The files written, HTML first, and the check's verdict.
 
     Raises
     ------
     SpecError, GeometryError, ExportError, CheckFailed
         As :func:`geomgen.check.run.check`; nothing of the report is written then.
     """
-    from ..outputs import Staging
+    from ..outputs import Output, write_set
+    from ..project import Project
 
+    project = Project.of(project, out_dir, allow_outside_files=allow_outside_files)
     say = progress or (lambda m: None)
-    data = report_data(spec_path, out_dir, progress=progress, check_result=check_result, hydro=hydro)
+    data = report_data(project, progress=progress)
     files = render_files(data, progress)
     say("writing the report")
     order = sorted(files, key=lambda n: (not n.endswith(".html"), not n.endswith(".md"), not n.endswith(".json"), n))
-    with Staging(out_dir) as stage:
-        for n in order:
-            stage.path(n).write_bytes(files[n])
-        return stage.commit({"spec": Path(spec_path).name})
+    purpose = {".html": "the design report, one self-contained page (open in a browser)",
+               ".md": "the design report as Markdown, with its drawings beside it",
+               ".json": "every number of the report, with the paths the pages cite",
+               ".png": "a drawing of the Markdown report"}
+    outs = [Output(n, "bytes", files[n], purpose[Path(n).suffix]) for n in order]
+    done = write_set(project.out_dir, outs, project.output_info("report"))
+    return ReportFiles(done.files, bool(data["check"]["ok"]), done.notes())

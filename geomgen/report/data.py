@@ -203,19 +203,15 @@ def _balance(hyd: dict | None) -> dict | None:
     }
 
 
-def report_data(spec_path, out_dir, *, progress=None, check_result=None, hydro=None) -> dict:
+def report_data(project, out_dir=None, *, progress=None) -> dict:
     """The report's data: check the written files, analyse the balance, lay out the drawings.
 
     Parameters
     ----------
-    spec_path : path of the spec (TOML)
-    out_dir : output folder (built if its outputs are missing or stale)
+    project : :class:`~geomgen.project.Project` (or a spec path)
+        Its check and lattice solution are reused when already computed in this run.
+    out_dir : output folder when ``project`` is a path
     progress : callable(str), optional
-    check_result : CheckResult, optional
-        Reuse a check already run on ``out_dir`` (otherwise :func:`geomgen.check.run.check`
-        runs, without writing its own record).
-    hydro : HydroResult, optional
-        Reuse an analysis (otherwise :func:`geomgen.hydro.analyse_spec` of the spec).
 
     Returns
     -------
@@ -224,18 +220,21 @@ def report_data(spec_path, out_dir, *, progress=None, check_result=None, hydro=N
         outlines, spanwise chord and twist, loading), ``check``, ``balance`` and ``hydro``.
     """
     from ..check.run import check
-    from ..geometry import build_models
-    from ..hydro import analyse_spec
-    from ..spec import load_spec
+    from ..errors import SpecError
+    from ..hydro import balance_of
+    from ..project import Project
 
+    project = Project.of(project, out_dir)
+    spec, models = project.spec, project.models
     say = progress or (lambda m: None)
-    spec = load_spec(spec_path)
-    models = build_models(spec)
-    res = check_result if check_result is not None else check(spec_path, out_dir, write_record=False,
-                                                                progress=progress)
+    res = check(project, progress=progress)
     say("analysing the balance (vortex lattice)")
-    if hydro is None and any(m.role in ("wing", "stabilizer") for m in models):
-        hydro = analyse_spec(spec)
+    hydro, skipped = None, res.balance_skipped
+    if skipped is None and (spec.flight is not None or any(m.role in ("wing", "stabilizer") for m in models)):
+        try:
+            hydro = balance_of(project)
+        except SpecError as exc:
+            skipped = "; ".join(exc.problems)
     hyd = _clean(hydro.as_dict()) if hydro is not None else None
     loading = {s["name"]: s["loading"] for s in (hyd or {}).get("surfaces", [])}
 
@@ -247,7 +246,7 @@ def report_data(spec_path, out_dir, *, progress=None, check_result=None, hydro=N
         measured = {k: recs[k].measured for k in MAIN_FIGURES if k in recs}
         s = {"name": m.name, "role": m.role, "orientation": m.orientation, "mirror": m.mirror,
              "position_mm": list(m.position), "reference": m.spec.reference, "incidence_deg": m.spec.incidence,
-             "te_thickness_mm": m.spec.te_thickness, "interpolation": m.spec.interpolation,
+             "te_thickness_mm": m.te_thickness, "interpolation": m.spec.interpolation,
              "figures": fig, "measured": measured, "mac": _mac(m, fig), "outline": _outline(m),
              "stations": _stations(m), "spanwise": _spanwise(m), "loading": loading.get(m.name)}
         if m.orientation == "horizontal":
@@ -258,11 +257,12 @@ def report_data(spec_path, out_dir, *, progress=None, check_result=None, hydro=N
 
     data = {
         "report_format": REPORT_FORMAT, "geomgen_version": __version__,
-        "spec": {"name": spec.name, "file": Path(spec_path).name, "datum_origin": spec.datum.origin},
+        "spec": {"name": spec.name, "file": project.spec_path.name, "datum_origin": spec.datum.origin},
         "caution": CAUTION,
         "surfaces": surfaces,
         "check": _check_section(res),
         "balance": _balance(hyd),
         "hydro": hyd,
+        "balance_skipped": skipped,
     }
     return _clean(data)

@@ -1,0 +1,95 @@
+"""The project: one spec, loaded and validated once per command, with everything worked out
+from it shared by every pipeline that command runs.
+
+A :class:`Project` holds the validated spec, its file and folder, the output folder, the
+options (outside coordinate files allowed or not, STL tolerance), the geometry models, and
+a memo of results computed once (the lattice solution, the solids, the check). Pipelines
+take a project, never a path: ``geomgen report`` loads the spec once, builds the models
+once and solves the lattice once, whatever it calls.
+
+Results from higher layers (hydrodynamics, CAD, check) are stored with :meth:`Project.memo`
+by the functions of those layers, so this module imports nothing above the geometry.
+"""
+
+from __future__ import annotations
+
+from functools import cached_property
+from pathlib import Path
+from typing import Any, Callable
+
+from . import defaults
+from .outputs import spec_digest
+
+
+def default_out_dir(spec_path) -> Path:
+    """The one default output folder: ``out/<spec file stem>`` (``make demo`` follows it)."""
+    return Path("out") / Path(spec_path).stem
+
+
+class Project:
+    """One spec and what is computed from it, once.
+
+    Parameters
+    ----------
+    spec_path : path of the spec (TOML)
+    out_dir : output folder; default :func:`default_out_dir`
+    allow_outside_files : let the spec read coordinate files outside its own folder
+    stl_tol : STL chordal deviation from the B-spline skin, mm
+
+    Raises
+    ------
+    SpecError
+        Every problem of the spec at once (exit 2).
+    """
+
+    def __init__(self, spec_path, out_dir=None, *, allow_outside_files: bool = False,
+                 stl_tol: float = defaults.STL_LINEAR_TOL_MM):
+        from .spec import load_spec
+
+        self.spec_path = Path(spec_path)
+        self.spec = load_spec(self.spec_path, allow_outside_files)
+        self.spec_sha256 = spec_digest(self.spec_path)
+        self.out_dir = Path(out_dir) if out_dir is not None else default_out_dir(spec_path)
+        self.allow_outside_files = allow_outside_files
+        self.stl_tol = float(stl_tol)
+        self._memo: dict[Any, Any] = {}
+
+    @classmethod
+    def of(cls, spec_or_project, out_dir=None, **options) -> "Project":
+        """A project from a path, or the project itself (library callers may pass either)."""
+        if isinstance(spec_or_project, Project):
+            if out_dir is not None and Path(out_dir) != spec_or_project.out_dir:
+                spec_or_project.out_dir = Path(out_dir)
+            return spec_or_project
+        return cls(spec_or_project, out_dir, **options)
+
+    @property
+    def name(self) -> str:
+        """The output set's name (the spec's ``name``)."""
+        return self.spec.name
+
+    @property
+    def source(self) -> str:
+        """The spec file as messages name it."""
+        return str(self.spec_path)
+
+    @cached_property
+    def models(self) -> list:
+        """Geometry models of every surface, in spec order (built once)."""
+        from .geometry import build_models
+
+        return build_models(self.spec)
+
+    def model(self, name: str):
+        return next(m for m in self.models if m.name == name)
+
+    def memo(self, key, make: Callable[[], Any]):
+        """The result stored under ``key``, computed by ``make()`` the first time."""
+        if key not in self._memo:
+            self._memo[key] = make()
+        return self._memo[key]
+
+    def output_info(self, command: str, **extra) -> dict:
+        """What the manifest records with each file a command writes."""
+        return {"set": self.name, "spec": self.spec_path.name, "spec_sha256": self.spec_sha256,
+                "command": command, **extra}
