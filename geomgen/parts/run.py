@@ -51,6 +51,10 @@ def write_shop_parts(project, out_dir=None, *, progress: Callable[[str], None] |
     say = progress or (lambda msg: None)
     spec, src = project.spec, project.source
     problems = []
+    try:  # every spec problem in one run: the models' (coordinate files, stations) and the tables'
+        project.models
+    except SpecError as exc:
+        problems += exc.problems
     for i, sf in enumerate(spec.surface):
         if sf.mount is not None and sf.orientation != "horizontal":
             problems.append(f'{src}: surface[{i}] "{sf.name}" mount: a mounting pad is made for horizontal '

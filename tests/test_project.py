@@ -1,0 +1,67 @@
+"""One project per command: the spec is loaded once, the models built once, the lattice
+solved once, whatever pipelines the command runs (report = build + check + balance + pages)."""
+
+from __future__ import annotations
+
+import pytest
+from click.testing import CliRunner
+
+from geomgen.cli import main
+from geomgen.project import Project, default_out_dir
+
+from conftest import DEMO, wing_spec
+
+
+def count_calls(monkeypatch, obj, name, counter, key):
+    real = getattr(obj, name)
+
+    def wrapped(*a, **k):
+        counter[key] = counter.get(key, 0) + 1
+        return real(*a, **k)
+
+    monkeypatch.setattr(obj, name, wrapped)
+
+
+def counters(monkeypatch) -> dict:
+    import geomgen.geometry
+    import geomgen.spec
+    from geomgen.hydro import solve
+
+    n: dict = {}
+    count_calls(monkeypatch, geomgen.spec, "load_spec", n, "spec loads")
+    count_calls(monkeypatch, geomgen.geometry, "build_models", n, "model builds")
+    real = solve.Flow.solve.__func__
+
+    def flow_solve(cls, lat):
+        n["lattice solves"] = n.get("lattice solves", 0) + 1
+        return real(cls, lat)
+
+    monkeypatch.setattr(solve.Flow, "solve", classmethod(flow_solve))
+    return n
+
+
+@pytest.mark.slow
+def test_report_loads_builds_and_solves_once(tmp_path, monkeypatch):
+    n = counters(monkeypatch)
+    r = CliRunner().invoke(main, ["report", str(DEMO), "-o", str(tmp_path / "o")])
+    assert r.exit_code == 0, r.output
+    assert n == {"spec loads": 1, "model builds": 1, "lattice solves": 1}
+
+
+def test_balance_loads_and_solves_once(monkeypatch):
+    n = counters(monkeypatch)
+    r = CliRunner().invoke(main, ["balance", str(DEMO)])
+    assert r.exit_code == 0, r.output
+    assert n == {"spec loads": 1, "model builds": 1, "lattice solves": 1}
+
+
+def test_project_memo_and_default_folder(write_spec):
+    p = Project(write_spec(wing_spec()))
+    assert p.models is p.models and p.name == "t"
+    calls = []
+    assert p.memo("k", lambda: calls.append(1) or 42) == 42 and p.memo("k", lambda: calls.append(1)) == 42
+    assert calls == [1]
+    assert default_out_dir("specs/demo-foilset.toml").as_posix() == "out/demo-foilset"
+    assert Project.of(p) is p
+    info = p.output_info("build")
+    assert info["set"] == "t" and info["command"] == "build" and len(info["spec_sha256"]) == 64
