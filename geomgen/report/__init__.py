@@ -12,23 +12,28 @@ import json
 import re
 from pathlib import Path
 
-from .data import REPORT_FORMAT, report_data
+from .data import REPORT_FORMAT, drawing_data, report_data
+from .worker import DrawingWorker
 
-__all__ = ["write_report", "report_data", "render_files", "ReportFiles", "REPORT_FORMAT"]
+__all__ = ["write_report", "report_data", "drawing_data", "render_files", "ReportFiles", "REPORT_FORMAT"]
 
 
 def _slug(key: str) -> str:
     return re.sub(r"[^A-Za-z0-9_.-]+", "-", key)
 
 
-def render_files(data: dict, progress=None) -> dict:
-    """Output name -> bytes of every report file rendered from ``data`` (nothing written)."""
+def render_files(data: dict, progress=None, images: dict | None = None) -> dict:
+    """Output name -> bytes of every report file rendered from ``data`` (nothing written).
+
+    ``images``: the drawings (key -> PNG bytes) if already rendered from the same data."""
     from ..outputs import output_name
-    from .plots import render_all
     from .render import to_html, to_markdown
 
     name = data["spec"]["name"]
-    images = render_all(data, progress)
+    if images is None:
+        from .plots import render_all
+
+        images = render_all(data, progress)
     image_names = {k: output_name(name, "report", _slug(k), suffix=".png") for k in images}
     files = {image_names[k]: png for k, png in images.items()}
     # the Markdown page sits beside its images: link them by file name
@@ -77,8 +82,10 @@ def write_report(project, out_dir=None, *, progress=None, allow_outside_files: b
 
     project = Project.of(project, out_dir, allow_outside_files=allow_outside_files)
     say = progress or (lambda m: None)
-    data = report_data(project, progress=progress)
-    files = render_files(data, progress)
+    drawing = drawing_data(project, progress=progress)
+    with DrawingWorker(drawing, progress) as images:  # drawn in a second process while the check runs
+        data = report_data(project, progress=progress, drawing=drawing)
+        files = render_files(data, progress, images=images.result())
     say("writing the report")
     order = sorted(files, key=lambda n: (not n.endswith(".html"), not n.endswith(".md"), not n.endswith(".json"), n))
     purpose = {".html": "the design report, one self-contained page (open in a browser)",

@@ -203,34 +203,25 @@ def _balance(hyd: dict | None) -> dict | None:
     }
 
 
-def report_data(project, out_dir=None, *, progress=None) -> dict:
-    """The report's data: check the written files, analyse the balance, lay out the drawings.
+def drawing_data(project, *, progress=None) -> dict:
+    """Everything of the report that does not need the written files: the spec, the surfaces'
+    intended figures, outlines, sections and spanwise curves, and the hydrodynamics. The
+    drawings are rendered from this part alone, so they can be made while the check measures.
 
     Parameters
     ----------
-    project : :class:`~geomgen.project.Project` (or a spec path)
-        Its check and lattice solution are reused when already computed in this run.
-    out_dir : output folder when ``project`` is a path
+    project : :class:`~geomgen.project.Project`
     progress : callable(str), optional
-
-    Returns
-    -------
-    dict
-        JSON-able (no nan): ``spec``, ``caution``, ``surfaces`` (figures, MAC, stations,
-        outlines, spanwise chord and twist, loading), ``check``, ``balance`` and ``hydro``.
     """
-    from ..check.run import check
     from ..errors import SpecError
+    from ..geometry.figures import intended_figures
     from ..hydro import balance_of
-    from ..project import Project
 
-    project = Project.of(project, out_dir)
     spec, models = project.spec, project.models
     say = progress or (lambda m: None)
-    res = check(project, progress=progress)
     say("analysing the balance (vortex lattice)")
-    hydro, skipped = None, res.balance_skipped
-    if skipped is None and (spec.flight is not None or any(m.role in ("wing", "stabilizer") for m in models)):
+    hydro, skipped = None, None
+    if spec.flight is not None or any(m.role in ("wing", "stabilizer") for m in models):
         try:
             hydro = balance_of(project)
         except SpecError as exc:
@@ -241,28 +232,59 @@ def report_data(project, out_dir=None, *, progress=None) -> dict:
     say("laying out the drawings")
     surfaces = []
     for m in models:
-        recs = {r.figure: r for r in res.records if r.part == m.name}
-        fig = {k: recs[k].intended for k in MAIN_FIGURES if k in recs}
-        measured = {k: recs[k].measured for k in MAIN_FIGURES if k in recs}
+        it = intended_figures(m).as_dict()
+        fig = {k: it[k] for k in MAIN_FIGURES if k in it}
         s = {"name": m.name, "role": m.role, "orientation": m.orientation, "mirror": m.mirror,
              "position_mm": list(m.position), "reference": m.spec.reference, "incidence_deg": m.spec.incidence,
              "te_thickness_mm": m.te_thickness, "interpolation": m.spec.interpolation,
-             "figures": fig, "measured": measured, "mac": _mac(m, fig), "outline": _outline(m),
+             "figures": fig, "measured": {}, "mac": _mac(m, fig), "outline": _outline(m),
              "stations": _stations(m), "spanwise": _spanwise(m), "loading": loading.get(m.name)}
         if m.orientation == "horizontal":
             s["side"] = _side(m)
         else:
             s["top_section"] = _top_section(m)
         surfaces.append(s)
-
     data = {
         "report_format": REPORT_FORMAT, "geomgen_version": __version__,
         "spec": {"name": spec.name, "file": project.spec_path.name, "datum_origin": spec.datum.origin},
         "caution": CAUTION,
         "surfaces": surfaces,
-        "check": _check_section(res),
+        "check": None,
         "balance": _balance(hyd),
         "hydro": hyd,
-        "balance_skipped": skipped,
+        "balance_skipped": skipped if spec.flight is not None else None,
     }
+    return _clean(data)
+
+
+def report_data(project, out_dir=None, *, progress=None, drawing: dict | None = None) -> dict:
+    """The report's data: the drawing part (:func:`drawing_data`) and the check of the written
+    files (building them first if missing or stale).
+
+    Parameters
+    ----------
+    project : :class:`~geomgen.project.Project` (or a spec path)
+        Its check and lattice solution are reused when already computed in this run.
+    out_dir : output folder when ``project`` is a path
+    progress : callable(str), optional
+    drawing : the result of :func:`drawing_data` for this project, if already made
+
+    Returns
+    -------
+    dict
+        JSON-able (no nan): ``spec``, ``caution``, ``surfaces`` (figures, measured figures, MAC,
+        stations, outlines, spanwise chord and twist, loading), ``check``, ``balance``, ``hydro``.
+    """
+    import copy
+
+    from ..check.run import check
+    from ..project import Project
+
+    project = Project.of(project, out_dir)
+    data = copy.deepcopy(drawing) if drawing is not None else drawing_data(project, progress=progress)
+    res = check(project, progress=progress)
+    for s in data["surfaces"]:
+        recs = {r.figure: r for r in res.records if r.part == s["name"]}
+        s["measured"] = {k: recs[k].measured for k in MAIN_FIGURES if k in recs}
+    data["check"] = _check_section(res)
     return _clean(data)
