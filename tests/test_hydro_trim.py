@@ -4,6 +4,7 @@ trade's rules of thumb (marked "common practice, no source")."""
 from __future__ import annotations
 
 import json
+import math
 
 import pytest
 
@@ -181,3 +182,16 @@ def test_result_is_json_and_the_report_has_units_and_the_caution(base):
     assert len(rules) == 2  # surfaces and trim tables: header, rule and rows of one width
     for i in rules:
         assert len(lines[i - 1]) == len(lines[i]) == len(lines[i + 1])
+
+
+def test_balance_without_a_mast_states_positions_from_the_datum_origin():
+    """No mast (issue 11): the text gives datum x from the origin and no empty mast columns."""
+    models = models_of(surface("w", "wing", trapezoid(300.0, 150.0, 100.0), position=(-200.0, 0.0, 0.0)),
+                       surface("s", "stabilizer", trapezoid(120.0, 60.0, 40.0), position=(300.0, 0.0, 0.0),
+                               incidence=-1.0))
+    r = analyse(models, FLIGHT)
+    assert r.reference["mast_x_mm"] is None and r.neutral_point_from_mast_mm is None
+    text = format_hydro(r)
+    assert "cp to mast" not in text and "M mast" not in text
+    assert "ahead of the datum origin (no mast)" in text or "aft of the datum origin (no mast)" in text
+    assert all(math.isfinite(t.cp_x_mm) for t in r.trim)
