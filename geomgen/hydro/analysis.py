@@ -209,7 +209,8 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
         "mast reference: leading edge at the mast's root station" if ctx.mast_x is not None
         else "no mast: positions are datum x",
         f"moments about x = {ctx.ref[0]:.1f} mm, z = {ctx.ref[2]:.1f} mm; positive nose up",
-        "linear, inviscid lattice: no stall, no friction or profile drag, wake fixed along +x",
+        "linear, inviscid lattice: no stall, no friction or profile drag; trailing vortices follow the surface "
+        "to the trailing edge, then run along +x",
         f"a surface sees another's wake through a vortex core of {WAKE_CORE:g} local chord (wake thickness "
         "and displacement); 0.1 chord more or less moves a neutral point about 2 % MAC",
     ]
