@@ -358,3 +358,22 @@ def test_palette_tells_things_apart_without_colour():
     points = [STYLE[k]["marker"] for k in ("neutral_point", "cg", "cp")]
     assert len(set(points) | {s["marker"] for s in roles}) == 7
     assert len({STYLE[k]["color"] for k in ("wing", "stabilizer", "neutral_point", "cg", "cp")}) == 5
+
+
+def test_balance_without_a_mast_shows_the_centre_of_pressure_from_the_datum_origin(tmp_path):
+    """No mast in the spec (issue 11): the trim table gives the centre of pressure as datum x
+    from the origin instead of empty mast columns."""
+    text = DEMO.read_text()
+    text = text[:text.index("# Mast: vertical")] + text[text.index("[flight]"):]
+    spec = tmp_path / "no-mast.toml"
+    spec.write_text(text)
+    data = report_data(spec, tmp_path / "out", check_result=fake_check(spec, tmp_path / "out"))
+    b = data["balance"]
+    assert b["mast_x_mm"] is None
+    files = render_files(data)
+    md = files["lakeside-cruiser-report.md"].decode()
+    assert "centre of pressure datum x from the origin mm" in md and "from mast" not in md
+    page = parse(files["lakeside-cruiser-report.html"].decode())
+    shown = dict(page.values)
+    for i, t in enumerate(b["trim"]):
+        assert shown[f"balance/trim/{i}/cp_x_mm"] == format(t["cp_x_mm"], "+.1f")

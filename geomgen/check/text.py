@@ -61,17 +61,25 @@ def balance_lines(res) -> list[str]:
     if not b:
         return []
     ref = b["reference"]
+    d = b.get("neutral_point_from_mast_mm")
+    if d is not None:
+        where_np = (f"{abs(d):.1f} mm {'ahead of' if d < 0 else 'behind'} the mast "
+                    f"({ref['mast_reference']})")
+    else:  # no mast in the spec: positions from the datum origin
+        x = b["neutral_point_x_mm"]
+        where_np = f"{abs(x):.1f} mm {'ahead of' if x < 0 else 'behind'} the datum origin (no mast)"
     out = [f"Balance (vortex-lattice method; details: geomgen balance): neutral point x = "
-           f"{b['neutral_point_x_mm']:.1f} mm, {abs(b['neutral_point_from_mast_mm']):.1f} mm "
-           f"{'ahead of' if b['neutral_point_from_mast_mm'] < 0 else 'behind'} the mast ({ref['mast_reference']}), "
+           f"{b['neutral_point_x_mm']:.1f} mm, {where_np}, "
            f"{b['neutral_point_pct_mac']:.1f} % of the front wing's MAC"]
     if b.get("static_margin_pct") is not None:
         out.append(f"static margin {b['static_margin_pct']:.1f} % MAC for the weight at x = {b['cg_x_mm']:.1f} mm")
     for t in b.get("trim") or []:
         lifts = ", ".join(f"{k} {v:+.0f} N ({b_kgf:+.1f} kgf)" for (k, v), b_kgf in
                           zip(t["lift_n"].items(), t["lift_kgf"].values()))
-        cp = t.get("cp_from_mast_mm")
-        where = "-" if cp is None else f"{abs(cp):.0f} mm {'ahead of' if cp < 0 else 'behind'} the mast"
+        cp, what = t.get("cp_from_mast_mm"), "the mast"
+        if d is None:  # no mast: from the datum origin
+            cp, what = t.get("cp_x_mm"), "the datum origin"
+        where = "-" if cp is None else f"{abs(cp):.0f} mm {'ahead of' if cp < 0 else 'behind'} {what}"
         out.append(f"  {t['speed_kmh']:5.1f} km/h: {lifts}; weight must act {where}")
     return out
 

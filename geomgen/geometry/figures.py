@@ -10,6 +10,7 @@ Integrals use Gauss-Legendre nodes on each station interval (exact for the cubic
 from __future__ import annotations
 
 import math
+import weakref
 from dataclasses import asdict, dataclass
 
 import numpy as np
@@ -58,25 +59,54 @@ def outline_at(model, y: float) -> tuple[float, float]:
     return float(pts[:, 0].min()), float(pts[:, 0].max() - pts[:, 0].min())
 
 
+@dataclass(frozen=True)
+class PlanformFigures:
+    """The planform part of :class:`Figures`: the one set of reference figures that the build,
+    the check, the balance and the report all use. Lengths mm, area cm²."""
+
+    span_mm: float
+    projected_area_cm2: float
+    aspect_ratio: float
+    mac_mm: float
+    mac_y_mm: float
+    mac_le_x_mm: float
+
+
+_PLANFORM: "weakref.WeakKeyDictionary" = weakref.WeakKeyDictionary()
+
+
+def planform_figures(model) -> PlanformFigures:
+    """Span, projected area, aspect ratio, MAC, its span position and leading-edge x of a
+    :class:`SurfaceModel`, over the whole outline (a rounded tip included), once per model."""
+    f = _PLANFORM.get(model)
+    if f is None:
+        y, w = _nodes(model)
+        le, c = np.array([outline_at(model, v) for v in y]).T
+        area_half = float(w @ c)
+        k = 2.0 if model.mirror else 1.0
+        span = k * (model.half_span - (0.0 if model.mirror else float(model.planform.y[0])))
+        area = k * area_half
+        f = PlanformFigures(span_mm=span, projected_area_cm2=area / 100.0, aspect_ratio=span**2 / area,
+                            mac_mm=float(w @ c**2) / area_half,
+                            mac_y_mm=float(w @ (c * (y - model.planform.y[0]))) / area_half,
+                            mac_le_x_mm=float(w @ (le * c)) / area_half)
+        _PLANFORM[model] = f
+    return f
+
+
 def intended_figures(model) -> Figures:
     """Figures of a :class:`SurfaceModel` from its geometry (no CAD)."""
     y, w = _nodes(model)
-    le, c = np.array([outline_at(model, v) for v in y]).T
-    area_half = float(w @ c)
-    mac = float(w @ c**2) / area_half
-    y_mac = float(w @ (c * (y - model.planform.y[0]))) / area_half
-    x_le = float(w @ (le * c)) / area_half
+    pf = planform_figures(model)
+    mac, x_le = pf.mac_mm, pf.mac_le_x_mm
     k = 2.0 if model.mirror else 1.0
-    half = model.half_span - (0.0 if model.mirror else float(model.planform.y[0]))
-    span = k * half
-    area = k * area_half
     vol = k * float(w @ np.array([model.section(v).area(1000) * float(model.chord(v)) ** 2 for v in y]))
     y0, y1 = float(model.planform.y[0]), float(model.half_span)  # root to the outermost section
     (le0, c0), (le1, c1) = outline_at(model, y0), outline_at(model, y1)
     sweep = math.degrees(math.atan2((le1 + c1 / 4) - (le0 + c0 / 4), y1 - y0))
     root, tip = float(model.chord(y0)), float(model.chord(y1))
-    return Figures(span_mm=span, projected_area_cm2=area / 100.0, aspect_ratio=span**2 / area, mac_mm=mac,
-                   mac_y_mm=y_mac, mac_le_x_mm=x_le, mac_qc_x_mm=x_le + mac / 4, root_chord_mm=root,
+    return Figures(span_mm=pf.span_mm, projected_area_cm2=pf.projected_area_cm2, aspect_ratio=pf.aspect_ratio, mac_mm=mac,
+                   mac_y_mm=pf.mac_y_mm, mac_le_x_mm=x_le, mac_qc_x_mm=x_le + mac / 4, root_chord_mm=root,
                    tip_chord_mm=tip, taper_ratio=tip / root, sweep_qc_deg=sweep, volume_cm3=vol / 1000.0,
                    wetted_area_cm2=surface_area(model) / 100.0, centroid_mm=tuple(centroid(model)))
 

@@ -19,12 +19,12 @@ Reference quantities:
 from __future__ import annotations
 
 import math
-import weakref
 from dataclasses import dataclass
 
 import numpy as np
 
 from .. import CAUTION
+from ..geometry.figures import PlanformFigures, planform_figures
 from ..spec.flight import DEFAULT_CHORD_PANELS, DEFAULT_SPAN_PANELS
 from .lattice import build_lattice
 from .results import HydroResult, Lateral, Loading, SurfaceHydro
@@ -57,47 +57,13 @@ def mast_reference_x(mast) -> float:
     return float(mast.camber_points(float(mast.planform.y[0]), [0.0])[0, 0])
 
 
-_FIGURES: "weakref.WeakKeyDictionary" = weakref.WeakKeyDictionary()
+def figures_of(model) -> PlanformFigures:
+    """Projected area, span, aspect ratio, MAC and MAC leading-edge x of ``model``.
 
-#: Gauss-Legendre nodes per station interval and section-loop points per side for the
-#: reference figures (the check pass uses 16 and 400; MAC and area agree to 1e-4 relative).
-FIG_NODES, FIG_POINTS = 8, 200
-
-
-@dataclass
-class RefFigures:
-    """Planform figures the coefficients need (definitions of ``geometry.figures``), mm, cm²."""
-
-    span_mm: float
-    projected_area_cm2: float
-    aspect_ratio: float
-    mac_mm: float
-    mac_le_x_mm: float
-
-
-def figures_of(model) -> RefFigures:
-    """Projected area, span, MAC and MAC leading-edge x of ``model``, once per model object.
-
-    The same definitions and projected outline as :func:`geometry.figures.intended_figures`
-    (Raymer §7.3 integrals over Gauss nodes per station interval), without the volume and at
-    a lighter sampling: the slowest step of a small analysis otherwise.
+    The intended figures of :func:`geometry.figures.planform_figures`, the same numbers the
+    build, the check and the report show (the whole outline, a rounded tip included).
     """
-    f = _FIGURES.get(model)
-    if f is None:
-        xg, wg = np.polynomial.legendre.leggauss(FIG_NODES)
-        py = model.planform.y
-        y = np.concatenate([0.5 * (b - a) * xg + 0.5 * (a + b) for a, b in zip(py[:-1], py[1:])])
-        w = np.concatenate([0.5 * (b - a) * wg for a, b in zip(py[:-1], py[1:])])
-        le, c = np.array([(p[:, 0].min(), np.ptp(p[:, 0])) for p in
-                          (model.section_loop(v, FIG_POINTS) for v in y)]).T
-        half_area = float(w @ c)
-        k = 2.0 if model.mirror else 1.0
-        span = k * (model.half_span - (0.0 if model.mirror else float(py[0])))
-        area = k * half_area
-        f = RefFigures(span_mm=span, projected_area_cm2=area / 100.0, aspect_ratio=span * span / area,
-                       mac_mm=float(w @ c**2) / half_area, mac_le_x_mm=float(w @ (le * c)) / half_area)
-        _FIGURES[model] = f
-    return f
+    return planform_figures(model)
 
 
 def _context(models, all_models) -> Context:
@@ -243,7 +209,8 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
         "mast reference: leading edge at the mast's root station" if ctx.mast_x is not None
         else "no mast: positions are datum x",
         f"moments about x = {ctx.ref[0]:.1f} mm, z = {ctx.ref[2]:.1f} mm; positive nose up",
-        "linear, inviscid lattice: no stall, no friction or profile drag, wake fixed along +x",
+        "linear, inviscid lattice: no stall, no friction or profile drag; trailing vortices follow the surface "
+        "to the trailing edge, then run along +x",
         f"a surface sees another's wake through a vortex core of {WAKE_CORE:g} local chord (wake thickness "
         "and displacement); 0.1 chord more or less moves a neutral point about 2 % MAC",
     ]

@@ -2,10 +2,13 @@
 
 Vortex-lattice method as described in Katz & Plotkin, *Low-Speed Aerodynamics*, and
 Bertin & Cummings, *Aerodynamics for Engineers*: each panel carries a horseshoe
-vortex whose bound leg lies on the panel's quarter-chord line and whose trailing legs run
-to +x infinity (the free-stream direction at zero attitude); the flow-tangency condition
-is met at the panel's three-quarter-chord point, with the normal taken from the camber
-surface there.
+vortex whose bound leg lies on the panel's quarter-chord line and whose trailing legs
+follow the strip's edges over the camber surface to the trailing edge, then run to +x
+infinity (the free-stream direction at zero attitude); the flow-tangency condition is met
+at the panel's three-quarter-chord point, with the normal taken from the camber surface
+there. (Legs along +x straight from the bound vortex left the surface of a wing set at an
+incidence and passed over its rear panels: a flat wing at 4° incidence got 3 % more lift
+than at 4° attitude; see DEVELOPERS.md.)
 
 Points come from :meth:`SurfaceModel.camber_points`, the same geometry model the CAD uses,
 so incidence, twist, sweep, dihedral/anhedral, curved planforms and mirrored halves are
@@ -80,6 +83,23 @@ class Lattice:
     """(N,) fraction along A–B of the collocation station."""
     core: np.ndarray = None
     """(N,) core radius the panel's vortices show to other surfaces, mm (see ``vortex``)."""
+    edge_from: np.ndarray = None
+    edge_to: np.ndarray = None
+    """(E, 3) pieces of the strip edges over the surface, edge line by edge line, row by row:
+    from a row's bound-vortex end to the next row's (the trailing edge after the last row).
+    The trailing legs follow the surface along them to the trailing edge."""
+    edge_a: np.ndarray = None
+    edge_b: np.ndarray = None
+    """(N,) int, the edge piece at each panel's A end and B end (strips share their edges)."""
+    edge_surface: np.ndarray = None
+    """(E,) int, surface index of each edge piece."""
+    edge_width: np.ndarray = None
+    edge_core: np.ndarray = None
+    """(E,) strip width and cross-surface core radius of each edge piece (the larger of the
+    two strips that share it), mm."""
+    A_te: np.ndarray = None
+    B_te: np.ndarray = None
+    """(N, 3) the strip edges' trailing-edge points, where the free legs start along +x."""
 
     @property
     def n(self) -> int:
@@ -141,9 +161,11 @@ def surface_panels(model, n_span: int, n_chord: int) -> dict:
     xcol = edges[:-1] + 0.75 * dx
     h = min(TANGENT_STEP, 0.2 * dx)
     m = n_chord
-    at_edges = np.array([model.camber_points(y, np.concatenate([xb, xcol])) for y in ye])  # (S+1, 2m, 3)
+    at_edges = np.array([model.camber_points(y, np.concatenate([xb, xcol, [1.0]])) for y in ye])  # (S+1, 2m+1, 3)
     at_mid = np.array([model.camber_points(y, np.concatenate([xcol, xcol - h, xcol + h])) for y in ym])
-    bound, col_e = at_edges[:, :m], at_edges[:, m:]
+    bound, col_e, te = at_edges[:, :m], at_edges[:, m:2 * m], at_edges[:, 2 * m:]
+    # next point down each strip edge: the next row's bound vortex, the trailing edge after the last
+    nxt = np.concatenate([bound[:, 1:], te], axis=1)
     col, cm, cp = at_mid[:, :m], at_mid[:, m:2 * m], at_mid[:, 2 * m:]
     t_span = col_e[1:] - col_e[:-1]                 # (S, m, 3)
     t_chord = cp - cm
@@ -153,6 +175,9 @@ def surface_panels(model, n_span: int, n_chord: int) -> dict:
     s = len(ym)
     width = np.linalg.norm((B - A)[..., 1:], axis=-1).mean(axis=1)   # projected on the y-z plane
     return dict(A=A.reshape(-1, 3), B=B.reshape(-1, 3), colloc=col.reshape(-1, 3),
+                edge_from=bound.reshape(-1, 3), edge_to=nxt.reshape(-1, 3),
+                edge_a=np.arange(s * m), edge_b=np.arange(s * m) + m,
+                A_te=np.repeat(te[:-1, 0], m, axis=0), B_te=np.repeat(te[1:, 0], m, axis=0),
                 normal=nrm.reshape(-1, 3), strip=np.repeat(np.arange(s), m),
                 width=np.repeat(width, m), strip_y=ym,
                 t_mid=np.repeat((ym - ye[:-1]) / (ye[1:] - ye[:-1]), m),
@@ -188,8 +213,15 @@ def build_lattice(models, span_panels: int, chord_panels: int) -> Lattice:
         strip_surface=np.concatenate([np.full(p["n_strips"], i) for i, p in enumerate(parts)]),
         models=list(models), chord_panels=[chord_panels] * len(models),
         span_panels=[p["n_strips"] for p in parts])
-    from .vortex import cross_core
+    from .vortex import cross_core, edge_cores
 
     lat.t_mid = cat("t_mid")
+    lat.A_te, lat.B_te = cat("A_te"), cat("B_te")
+    lat.edge_from, lat.edge_to = cat("edge_from"), cat("edge_to")
+    e_off = np.cumsum([0] + [len(p["edge_from"]) for p in parts])
+    lat.edge_a = np.concatenate([p["edge_a"] + e_off[i] for i, p in enumerate(parts)])
+    lat.edge_b = np.concatenate([p["edge_b"] + e_off[i] for i, p in enumerate(parts)])
+    lat.edge_surface = np.concatenate([np.full(len(p["edge_from"]), i) for i, p in enumerate(parts)])
     lat.core = cross_core(lat)
+    lat.edge_width, lat.edge_core = edge_cores(lat)
     return lat

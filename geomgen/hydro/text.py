@@ -45,6 +45,8 @@ def format_hydro(r) -> str:
            f"MAC = {ref['mac_mm']:.1f} mm, span = {ref['span_mm']:.1f} mm"]
     if ref["mast_x_mm"] is not None:
         out.append(f"Mast reference: '{ref['mast']}' {ref['mast_reference']}, x = {ref['mast_x_mm']:.1f} mm")
+    else:
+        out.append("No mast: positions are datum x, from the datum origin")
     mp = ref["moment_point_mm"]
     out += [f"Datum x aft, z up; moments about x = {mp[0]:.1f} mm, z = {mp[2]:.1f} mm, positive nose up",
             f"Reference attitude {r.alpha_ref_deg:.2f}° (free stream to the datum x axis)", ""]
@@ -66,6 +68,9 @@ def format_hydro(r) -> str:
         d = r.neutral_point_from_mast_mm
         np_line += (f"; {abs(d):.1f} mm {'aft of' if d >= 0 else 'ahead of'} the mast reference "
                     f"({r.neutral_point_from_mast_pct_mac:+.1f} % MAC)")
+    else:
+        d = r.neutral_point_x_mm
+        np_line += f"; {abs(d):.1f} mm {'aft of' if d >= 0 else 'ahead of'} the datum origin (no mast)"
     out.append(np_line)
     if r.downwash_gradient is not None:
         out.append(f"Downwash gradient at the stabilizer (1 − CLα in set / CLα alone): {r.downwash_gradient:.3f}")
@@ -77,15 +82,18 @@ def format_hydro(r) -> str:
         out += ["", f"Trim, lift = weight: {r.mass_kg:g} kg ({r.mass_kg * G:.0f} N), {w['name']} "
                     f"ρ = {w['density']:g} kg/m³, ν = {w['viscosity']:.4g} m²/s ({w['source']})"]
         names = [s.name for s in r.surfaces]
+        mast = ref["mast_x_mm"] is not None
         heads = ["km/h", "m/s", "attitude °"] + [f"{n} N (kgf)" for n in names] + \
-                ["cp x mm", "cp to mast mm", "M mast N·m", "Di N"] + [f"Re {n}" for n in names]
+                ["cp x mm"] + (["cp to mast mm", "M mast N·m"] if mast else []) + ["Di N"] + [f"Re {n}" for n in names]
         if r.cg_x_mm is not None:
             heads.insert(heads.index("Di N"), "M weight N·m")
         rows = []
         for t in r.trim:
             row = [_f(t.speed_kmh, ".1f"), _f(t.speed_ms, ".2f"), _f(t.attitude_deg, ".2f")]
             row += [f"{_f(t.lift_n.get(n), '.0f')} ({_f(t.lift_kgf.get(n), '.1f')})" for n in names]
-            row += [_f(t.cp_x_mm, ".1f"), _f(t.cp_from_mast_mm, "+.1f"), _f(t.moment_about_mast_nm, "+.1f")]
+            row += [_f(t.cp_x_mm, ".1f")]
+            if mast:
+                row += [_f(t.cp_from_mast_mm, "+.1f"), _f(t.moment_about_mast_nm, "+.1f")]
             if r.cg_x_mm is not None:
                 row.append(_f(t.moment_about_weight_nm, "+.1f"))
             row += [_f(t.induced_drag_n, ".1f")] + [_f(t.reynolds.get(n), ".3g") for n in names]
@@ -94,7 +102,9 @@ def format_hydro(r) -> str:
             rows.append(row)
         out += table(heads, rows, left=0)
         out.append("cp: where the weight must act for balance (negative 'to mast': ahead of it). "
-                   "Lift is negative when a surface pushes down.")
+                   "Lift is negative when a surface pushes down." if mast else
+                   "cp x: where the weight must act for balance, datum x from the datum origin (no mast; "
+                   "negative: ahead of it). Lift is negative when a surface pushes down.")
         if any(t.below_takeoff_speed for t in r.trim):
             out.append("* below the estimated takeoff speed: the lattice has no stall, so this row is not reachable.")
         if any(not math.isfinite(t.attitude_deg) for t in r.trim):

@@ -11,8 +11,9 @@ and its limit for B → ∞ along the unit vector d (a semi-infinite trailing le
 
     v = Γ/(4π) · (d × r1) / |d × r1|² · (1 + d · r1/|r1|)
 
-A horseshoe is the leg from +∞ to A, the bound segment A → B and the leg B → +∞, legs
-along d = +x.
+A horseshoe is the leg from +∞ to A, the bound segment A → B and the leg B → +∞. Each leg
+follows its strip edge over the surface (straight pieces through the bound-vortex ends of
+the rows behind) to the trailing edge and runs from there along d = +x.
 
 Cores. A point on or near a vortex line of *another* surface (a stabilizer in the plane of
 the wing's wake) would see an unbounded velocity from the discrete legs, and the in-plane
@@ -57,6 +58,18 @@ def cross_core(lat) -> np.ndarray:
     return np.maximum(WAKE_CORE * lat.strip_chord[lat.strip], RIPPLE_CORE * lat.width)
 
 
+def edge_cores(lat) -> tuple[np.ndarray, np.ndarray]:
+    """(E,) width and core radius of each strip-edge piece: the larger of the two strips
+    that share it, mm."""
+    out = []
+    for vals in (lat.width, lat.core):
+        e = np.zeros(len(lat.edge_from))
+        np.maximum.at(e, lat.edge_a, vals)
+        np.maximum.at(e, lat.edge_b, vals)
+        out.append(e)
+    return out[0], out[1]
+
+
 def _core2(surf_p, surf_q, width_q, core_q) -> np.ndarray:
     """(n, m) squared core radius, mm², for points on surfaces ``surf_p`` and panels ``surf_q``."""
     same = surf_p[:, None] == surf_q[None, :]
@@ -72,8 +85,48 @@ def _smooth(d2, rc2):
     return -np.expm1(-d2 / rc2) / np.maximum(d2, 1e-300)
 
 
+def _segments(px, py, pz, a, b, core2, tiny=1e-12):
+    """Velocity at points (n, 1 columns) of unit straight segments a -> b ((N, 3) each), (n, N) arrays.
+
+    Biot–Savart for a straight segment (module docstring), Gaussian core ``core2`` (n, N).
+    """
+    ax, ay, az = (a[None, :, k] for k in range(3))
+    bx, by, bz = (b[None, :, k] for k in range(3))
+    r1x, r1y, r1z = px - ax, py - ay, pz - az
+    r2x, r2y, r2z = px - bx, py - by, pz - bz
+    n1 = np.sqrt(r1x * r1x + r1y * r1y + r1z * r1z) + tiny
+    n2 = np.sqrt(r2x * r2x + r2y * r2y + r2z * r2z) + tiny
+    r0x, r0y, r0z = bx - ax, by - ay, bz - az
+    cx = r1y * r2z - r1z * r2y
+    cy = r1z * r2x - r1x * r2z
+    cz = r1x * r2y - r1y * r2x
+    den = cx * cx + cy * cy + cz * cz                       # (h |r0|)², h = distance to the line
+    f = (r0x * (r1x / n1 - r2x / n2) + r0y * (r1y / n1 - r2y / n2) + r0z * (r1z / n1 - r2z / n2))
+    f *= _smooth(den, core2 * (r0x * r0x + r0y * r0y + r0z * r0z)) / FOUR_PI
+    return cx * f, cy * f, cz * f
+
+
+def _free_legs(px, py, pz, a, b, core2, tiny=1e-12):
+    """Velocity of the pair of semi-infinite legs along +x: a -> +inf (-1) and b -> +inf (+1)."""
+    r1x, r1y, r1z = px - a[None, :, 0], py - a[None, :, 1], pz - a[None, :, 2]
+    r2x, r2y, r2z = px - b[None, :, 0], py - b[None, :, 1], pz - b[None, :, 2]
+    n1 = np.sqrt(r1x * r1x + r1y * r1y + r1z * r1z) + tiny
+    n2 = np.sqrt(r2x * r2x + r2y * r2y + r2z * r2z) + tiny
+    h2b, h2a = r2y * r2y + r2z * r2z, r1y * r1y + r1z * r1z
+    fb = (1.0 + r2x / n2) * _smooth(h2b, core2) / FOUR_PI
+    fa = (1.0 + r1x / n1) * _smooth(h2a, core2) / FOUR_PI
+    # d x r = (0, -rz, ry) for d = +x
+    return r1z * fa - r2z * fb, r2y * fb - r1y * fa
+
+
 def horseshoe_block(P, surf_p, lat) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Velocity at points ``P`` induced by every unit-strength horseshoe of ``lat``.
+
+    A horseshoe is its bound segment A -> B, two legs that follow the strip's edges over the
+    surface (through the bound-vortex ends of the rows behind, to the trailing edge) and two
+    free legs from the trailing edge along +x. The legs over the surface are sums of the
+    edge pieces of the rows behind (a reversed cumulative sum along each strip), and the free
+    legs are shared by the strip's panels: three finite segments a pair in all.
 
     Written component by component on (n, N) arrays (no (n, N, 3) temporaries: several
     times faster than stacked cross products).
@@ -88,30 +141,23 @@ def horseshoe_block(P, surf_p, lat) -> tuple[np.ndarray, np.ndarray, np.ndarray]
     -------
     vx, vy, vz : (n, N) velocity components per unit circulation (1/mm per mm of Γ).
     """
-    tiny = 1e-12
+    m = lat.chord_panels[0]
+    if any(k != m for k in lat.chord_panels):
+        raise ValueError("every surface of a lattice needs the same number of chordwise panels")
     core2 = _core2(surf_p, lat.surface, lat.width, lat.core)
     px, py, pz = (P[:, k:k + 1] for k in range(3))
-    ax, ay, az = (lat.A[None, :, k] for k in range(3))
-    bx, by, bz = (lat.B[None, :, k] for k in range(3))
-    r1x, r1y, r1z = px - ax, py - ay, pz - az
-    r2x, r2y, r2z = px - bx, py - by, pz - bz
-    n1 = np.sqrt(r1x * r1x + r1y * r1y + r1z * r1z) + tiny
-    n2 = np.sqrt(r2x * r2x + r2y * r2y + r2z * r2z) + tiny
-    r0x, r0y, r0z = bx - ax, by - ay, bz - az
-    # bound segment A -> B
-    cx = r1y * r2z - r1z * r2y
-    cy = r1z * r2x - r1x * r2z
-    cz = r1x * r2y - r1y * r2x
-    den = cx * cx + cy * cy + cz * cz                       # (h |r0|)², h = distance to the line
-    f = (r0x * (r1x / n1 - r2x / n2) + r0y * (r1y / n1 - r2y / n2) + r0z * (r1z / n1 - r2z / n2))
-    f *= _smooth(den, core2 * (r0x * r0x + r0y * r0y + r0z * r0z)) / FOUR_PI
-    vx, vy, vz = cx * f, cy * f, cz * f
-    # trailing legs along +x: B -> +inf (+1), A -> +inf (-1); d x r = (0, -rz, ry)
-    h2b, h2a = r2y * r2y + r2z * r2z, r1y * r1y + r1z * r1z
-    fb = (1.0 + r2x / n2) * _smooth(h2b, core2) / FOUR_PI
-    fa = (1.0 + r1x / n1) * _smooth(h2a, core2) / FOUR_PI
-    vy += r1z * fa - r2z * fb
-    vz += r2y * fb - r1y * fa
+    vx, vy, vz = _segments(px, py, pz, lat.A, lat.B, core2)
+    # legs over the surface: the edge pieces of this row and every row behind, + at B, - at A;
+    # each edge line is computed once for the two strips that share it
+    e2 = _core2(surf_p, lat.edge_surface, lat.edge_width, lat.edge_core)
+    n, E = len(P), len(lat.edge_from)
+    for v, e in zip((vx, vy, vz), _segments(px, py, pz, lat.edge_from, lat.edge_to, e2)):
+        e = e.reshape(n, E // m, m)[:, :, ::-1].cumsum(axis=2)[:, :, ::-1].reshape(n, E)
+        v += e[:, lat.edge_b] - e[:, lat.edge_a]
+    # free legs from the trailing edge, once per strip
+    fy, fz = _free_legs(px, py, pz, lat.A_te[::m], lat.B_te[::m], core2[:, ::m])
+    vy += np.repeat(fy, m, axis=1)
+    vz += np.repeat(fz, m, axis=1)
     return vx, vy, vz
 
 
@@ -145,10 +191,11 @@ def influence(lat, P, surf_p, normals=None) -> np.ndarray:
 
 
 def trefftz_matrix(lat) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Normal wash in the Trefftz plane at each horseshoe's force point (``Lattice.mid``).
+    """Normal wash in the Trefftz plane at each horseshoe's cut (at the force point's span fraction).
 
     In the plane far behind the set, normal to x, every horseshoe leaves two point vortices
-    (+Γ at B, −Γ at A, rotation about +x) and a cut of potential jump Γ between them. The
+    (+Γ at B_te, −Γ at A_te: its free legs leave from the trailing edge, rotation about +x) and
+    a cut of potential jump Γ between them. The
     induced drag is D_i = −(ρ/2) Σ Γ_p w_p Δs_p with w_p the wash normal to the cut at its
     force point (Trefftz-plane analysis: the far-wake kinetic energy per unit length).
 
@@ -158,12 +205,12 @@ def trefftz_matrix(lat) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     ds : (N,) cut lengths, mm
     n2 : (N, 2) cut normals (y, z), x̂ × cut direction
     """
-    a, b = lat.A[:, 1:], lat.B[:, 1:]
+    a, b = lat.A_te[:, 1:], lat.B_te[:, 1:]             # the free legs leave from the trailing edge
     seg = b - a
     ds = np.linalg.norm(seg, axis=1)
     t = seg / np.maximum(ds, 1e-12)[:, None]
     n2 = np.column_stack([-t[:, 1], t[:, 0]])         # x̂ × (0, ty, tz) = (0, -tz, ty)
-    mid = lat.mid[:, 1:]
+    mid = a + lat.t_mid[:, None] * seg
     n = lat.n
     T = np.empty((n, n))
     rows = max(1, BLOCK // max(n, 1))

@@ -138,7 +138,10 @@ def _balance(data) -> list:
         header = [["speed km/h"], ["speed m/s"], ["attitude °"]]
         for n in names:
             header += [[n, " lift N"], [n, " lift kgf"]]
-        header += [["centre of pressure from mast mm"], ["centre of pressure from mast % MAC"], ["static margin % MAC"]]
+        mast = b["mast_x_mm"] is not None
+        cp_key, cp_name = ("cp_from_mast", "from mast") if mast else ("cp_x", "datum x from the origin")
+        header += [[f"centre of pressure {cp_name} mm"], [f"centre of pressure {cp_name} % MAC"],
+                   ["static margin % MAC"]]
         if b["takeoff"]:
             header += [["below the takeoff estimate"]]
         rows = []
@@ -147,7 +150,7 @@ def _balance(data) -> list:
             row = [[T("speed_kmh")], [T("speed_ms", f=".2f")], [T("attitude_deg", f="+.2f")]]
             for n in names:
                 row += [[T("lift_n", n)], [T("lift_kgf", n, f=".2f")]]
-            row += [[T("cp_from_mast_mm", f="+.1f")], [T("cp_from_mast_pct_mac", f="+.1f")],
+            row += [[T(f"{cp_key}_mm", f="+.1f")], [T(f"{cp_key}_pct_mac", f="+.1f")],
                     [T("static_margin_pct", f="+.1f")]]
             if b["takeoff"]:
                 row += [[T("below_takeoff_speed", f="str")]]
@@ -156,7 +159,8 @@ def _balance(data) -> list:
             "Trim (lift equal to weight) for ", B("mass_kg", "g"), " kg in ", B("water", "str"), " (density ",
             B("density_kg_m3", "g"), " kg/m³). Attitude: free stream to the datum x axis, positive nose up. "
             "Negative lift pushes down. Centre of pressure: net, of the lifting surfaces, positive aft of the "
-            "mast reference. Vortex lattice of ", B("panels", "d"), " panels."]))
+            + ("mast reference" if mast else "datum origin (no mast in the spec)")
+            + ". Vortex lattice of ", B("panels", "d"), " panels."]))
     if b["takeoff"]:
         out.append(Para(["Estimated takeoff: ", V(("balance", "takeoff", "speed_kmh"), ".1f"),
                          " km/h (", V(("balance", "takeoff", "speed_ms"), ".2f"), " m/s) at attitude ",

@@ -185,7 +185,9 @@ def _balance(hyd: dict | None) -> dict | None:
     trim = []
     for t in hyd.get("trim", []):
         cp = t.get("cp_from_mast_mm")
+        cx = t.get("cp_x_mm")
         trim.append({**t, "cp_from_mast_pct_mac": (cp / mac * 100.0) if cp is not None else None,
+                     "cp_x_pct_mac": (cx / mac * 100.0) if cx is not None else None,
                      "static_margin_pct": hyd.get("static_margin_pct")})
     water = hyd.get("water") or {}
     return {
