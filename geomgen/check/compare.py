@@ -131,20 +131,21 @@ def polyline_distance(points, line):
 
 def station_records(part: str, model, measured_stations: list, check_at: list) -> list[Record]:
     """Chord and thickness at the stations and at the spec's ``check_at`` positions."""
+    from ..geometry.figures import section_figures
+
     out = []
     wanted = {float(s.y): s for s in check_at}
     for ms in measured_stations:
         y = ms["y_mm"]
-        sec = model.section(y)
-        t, x = sec.max_thickness()
-        c = float(model.chord(y))
+        it = section_figures(model, y)  # the same definitions as the measurement
+        c = it["chord_mm"]
         ca = wanted.get(y)
         for fig, label, unit, intended, meas, tol, exp in (
                 ("chord", f"chord at {y:g} mm", "mm", c, ms["chord_mm"], defaults.CHECK_LENGTH_MM,
                  ca.chord if ca else None),
-                ("thickness", f"max thickness at {y:g} mm", "mm", t * c, ms["thickness_mm"],
+                ("thickness", f"max thickness at {y:g} mm", "mm", it["thickness_mm"], ms["thickness_mm"],
                  defaults.CHECK_THICKNESS_MM, ca.thickness if ca else None),
-                ("thickness_pct", f"  as % chord (at {ms['at_pct']:.1f} % chord)", "%", 100 * t,
+                ("thickness_pct", f"  as % chord (at {ms['at_pct']:.1f} % chord)", "%", it["thickness_pct"],
                  ms["thickness_pct"], 100 * defaults.CHECK_THICKNESS_MM / c, None)):
             rec = Record(part, f"{fig}@{y:g}", label, unit, intended, step=meas, tol_step=tol)
             if abs(meas - intended) > tol:

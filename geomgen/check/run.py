@@ -73,6 +73,7 @@ def check(spec_path, out_dir=None, *, rebuild: bool = False, stl_tol: float = de
 
     from ..cad.measure import measure_step
     from .measure import measure_step_solid, measure_stl
+    from .slices import Frame
 
     t2 = time.perf_counter()
     records, parts = [], {}
@@ -88,8 +89,9 @@ def check(spec_path, out_dir=None, *, rebuild: bool = False, stl_tol: float = de
         if len(solids) != 1:
             raise CheckFailed(f'surface "{m.name}": {step_path.name} holds {len(solids)} solids, expected one')
         ys = sorted({float(v) for v in m.planform.y} | {float(c.y) for c in sspec.check_at})
-        ms = measure_step_solid(solids[0], ys)
-        st = measure_stl(stl_path)
+        frame = Frame(**m.span_frame())
+        ms = measure_step_solid(solids[0], ys, frame)
+        st = measure_stl(stl_path, frame)
         intended = intended_figures(m).as_dict()
         expect = {k: getattr(sspec.expect, k) for k in type(sspec.expect).model_fields} if sspec.expect else {}
         records += compare_part(m.name, intended, ms["figures"], st["figures"], stl_tol,
