@@ -152,3 +152,33 @@ def test_round_tip_area_at_default_loft_resolution(tmp_path, write_spec):
     r = record(res, "projected_area_cm2")
     assert abs(r.step / r.intended - 1) < 2.5e-4  # half the tolerance
     assert r.step == pytest.approx(math.pi * 2 * h * c0 / 4 / 100, rel=5e-4)
+
+
+# -- a sharp edge on a cambered section (was refused: "the loft came out invalid") -------
+@pytest.mark.parametrize("naca", ["2412", "4412", "23012", "6409"])
+def test_sharp_edge_closes_to_one_point(naca):
+    """te_thickness = 0 on the open NACA form: the perpendicular construction (Report 460)
+    ends the sides 2 y_t(1) sin θ apart in x as well as y; the finished section must meet
+    in one point or the loft is not closed."""
+    m = model_of(wing_spec(te=0.0, section=f'naca = "{naca}"'))
+    for y in (0.0, 250.0):
+        sec = m.section(y)
+        (xu, yu), (xl, yl) = sec.upper(np.array([1.0])), sec.lower(np.array([1.0]))
+        assert abs(xu[0] - xl[0]) < 1e-12 and abs(yu[0] - yl[0]) < 1e-12
+        # ahead of the finishing ramp the section is the published one
+        base = m.base_section(y)
+        s = np.linspace(0, 0.5, 50)
+        assert np.allclose(np.column_stack(sec.upper(s)), np.column_stack(base.upper(s)), atol=1e-15)
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("naca,invert,mirror,extra", [
+    ("2412", False, False, ""),
+    ("23012", True, True, ""),
+    ("4412", False, True, 'tip = "round"'),
+])
+def test_sharp_cambered_part_builds_and_checks_clean(tmp_path, write_spec, naca, invert, mirror, extra):
+    sec = f'naca = "{naca}"' + ("\ninvert = true" if invert else "")
+    res = check_of(write_spec, tmp_path, wing_spec(te=0.0, mirror=mirror, section=sec, extra=extra,
+                                                   stations=[dict(y=0, chord=200), dict(y=300, chord=100)]))
+    assert faults(res) == [] and res.ok
