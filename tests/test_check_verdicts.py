@@ -182,3 +182,44 @@ def test_sharp_cambered_part_builds_and_checks_clean(tmp_path, write_spec, naca,
     res = check_of(write_spec, tmp_path, wing_spec(te=0.0, mirror=mirror, section=sec, extra=extra,
                                                    stations=[dict(y=0, chord=200), dict(y=300, chord=100)]))
     assert faults(res) == [] and res.ok
+
+
+# -- refusals that name their cause -----------------------------------------------------
+def test_negative_smooth_chord_is_named_as_such(write_spec):
+    """A spline through uneven stations dives below zero: the refusal names the surface,
+    the two stations around the dip, the quantity and what passes (it used to be reported
+    as a trailing edge 'at most -183.73 mm')."""
+    from geomgen.errors import GeometryError
+    from geomgen.spec import load_spec
+
+    st = [dict(y=0, chord=200), dict(y=100, chord=10), dict(y=110, chord=200), dict(y=300, chord=10)]
+    p = write_spec(wing_spec(te=0.5, interpolation="smooth", mirror=False, stations=st))
+    with pytest.raises(GeometryError) as exc:
+        build_models(load_spec(p))
+    msg = str(exc.value)
+    assert 'surface "w" chord: the smooth curve through the station chords drops below zero' in msg
+    assert "between station[0] (y=0) and station[1] (y=100), to -515.3 mm at y = 48.9 mm" in msg
+    assert 'interpolation = "linear"' in msg and "at most -" not in msg
+
+
+def test_independent_problems_come_out_in_one_run(write_spec, tmp_path):
+    """A missing coordinate file, a trailing edge too thick and a chord curve below zero, on
+    three surfaces: all three in one refusal, each naming its surface and field."""
+    from geomgen.errors import SpecError
+    from geomgen.spec import load_spec
+
+    text = wing_spec(te=0.5) + '[sections.f]\nfile = "missing.dat"\n'
+    surf = lambda name, sec, te, interp, st: (  # noqa: E731
+        f'[[surface]]\nname = "{name}"\nrole = "stabilizer"\nte_thickness = {te}\ninterpolation = "{interp}"\n'
+        + "".join(f'[[surface.station]]\nsection = "{sec}"\ny = {y}\nchord = {c}\n' for y, c in st))
+    text += surf("filed", "f", 0.5, "linear", [(0, 100), (200, 50)])
+    text += surf("thin-edge", "a", 3.0, "linear", [(0, 200), (300, 40)])
+    text += surf("dip", "a", 0.5, "smooth", [(0, 200), (100, 10), (110, 200), (300, 10)])
+    p = write_spec(text)
+    with pytest.raises(SpecError) as exc:
+        build_models(load_spec(p))
+    probs = exc.value.problems
+    assert any("sections f" in m and "missing.dat" in m for m in probs), probs
+    assert any('"thin-edge" te_thickness: 3 mm' in m and "what passes: te_thickness <=" in m for m in probs), probs
+    assert any('surface "dip" chord:' in m and "station[0] (y=0) and station[1] (y=100)" in m for m in probs), probs
+    assert all(m.startswith(str(p)) for m in probs)
