@@ -223,3 +223,48 @@ def test_independent_problems_come_out_in_one_run(write_spec, tmp_path):
     assert any('"thin-edge" te_thickness: 3 mm' in m and "what passes: te_thickness <=" in m for m in probs), probs
     assert any('surface "dip" chord:' in m and "station[0] (y=0) and station[1] (y=100)" in m for m in probs), probs
     assert all(m.startswith(str(p)) for m in probs)
+
+
+FIN_ALONE = """\
+format = 1
+name = "fin"
+[datum]
+origin = "test origin"
+[sections.a]
+naca = "0012"
+[[surface]]
+name = "fin"
+role = "fin"
+orientation = "vertical-down"
+[[surface.station]]
+y = 0.0
+chord = 120.0
+section = "a"
+[[surface.station]]
+y = 150.0
+chord = 80.0
+section = "a"
+[flight]
+mass_kg = 85.0
+speeds_kmh = [14.0, 18.0]
+fluid = "seawater"
+"""
+
+
+@pytest.mark.slow
+def test_unbalanceable_flight_still_reports_the_geometry_check(write_spec, tmp_path):
+    """A fin alone with a [flight] table: check and report give the geometry check and say
+    the balance was skipped and why (they used to stop with an unnamed spec error)."""
+    from click.testing import CliRunner
+
+    from geomgen.cli import main
+
+    p = write_spec(FIN_ALONE)
+    r = CliRunner().invoke(main, ["check", str(p), "-o", str(tmp_path / "o")])
+    assert r.exit_code == 0, r.output
+    assert "OK: every measured figure agrees" in r.output
+    assert "[flight] balance skipped" in r.output and 'fin "fin" (vertical-down)' in r.output
+    assert "[flight] balance skipped" in (tmp_path / "o" / "fin-check.md").read_text()
+    r = CliRunner().invoke(main, ["report", str(p), "-o", str(tmp_path / "o")])
+    assert r.exit_code == 0, r.output
+    assert (tmp_path / "o" / "fin-report.html").exists()

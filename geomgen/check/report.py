@@ -92,6 +92,8 @@ def format_terminal(res) -> str:
     out += summary_lines(res)
     if res.balance:
         out += [""] + balance_lines(res)
+    elif getattr(res, "balance_skipped", None):
+        out += ["", res.balance_skipped]
     out += ["", "CAUTION: " + CAUTION]
     return "\n".join(out)
 
@@ -108,5 +110,7 @@ def format_markdown(res) -> str:
     out += ["", "## Verdict", ""] + [f"- {line}" for line in summary_lines(res)]
     if res.balance:
         out += ["", "## Balance", ""] + [f"- {line.strip()}" for line in balance_lines(res)]
+    elif getattr(res, "balance_skipped", None):
+        out += ["", "## Balance", "", f"- {res.balance_skipped}"]
     out += ["", "## Caution", "", CAUTION, ""]
     return "\n".join(out)

@@ -24,6 +24,7 @@ class CheckResult:
     record_files: list = field(default_factory=list)
     modified: list = field(default_factory=list)  # outputs changed since geomgen wrote them
     balance: dict | None = None  # vortex-lattice summary when the spec has a [flight] table
+    balance_skipped: str | None = None  # why a spec with [flight] got no balance
 
     @property
     def faults(self) -> list[Record]:
@@ -43,6 +44,7 @@ class CheckResult:
                 "built": self.built, "ok": self.ok, "modified_since_written": self.modified, "stl_tol_mm": self.stl_tol,
                 "parts": {k: {kk: vv for kk, vv in v.items()} for k, v in self.parts.items()},
                 "records": [r.as_dict() for r in self.records], "balance": self.balance,
+                "balance_skipped": self.balance_skipped,
                 "seconds": self.seconds, "caution": CAUTION}
 
 
@@ -105,9 +107,15 @@ def check(spec_path, out_dir=None, *, rebuild: bool = False, stl_tol: float = de
                       {"build_or_reuse": t1 - t0, "kernel_import": t2 - t1, "measure": t3 - t2}, stl_tol)
     res.modified = modified
     if spec.flight is not None:
+        from ..errors import GeomgenError
         from ..hydro import analyse
 
-        res.balance = analyse(models, spec.flight).as_dict()
+        try:
+            res.balance = analyse(models, spec.flight).as_dict()
+        except GeomgenError as exc:  # the geometry check stands on its own; say why there is no balance
+            why = "; ".join(getattr(exc, "problems", None) or [str(exc)])
+            have = ", ".join(f'{m.role} "{m.name}" ({m.orientation})' for m in models)
+            res.balance_skipped = f"[flight] balance skipped: {why} (this spec has: {have})"
     if write_record:
         from ..outputs import Staging
         from .report import format_markdown
