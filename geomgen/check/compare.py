@@ -74,7 +74,11 @@ def build_tolerances(fig: str, intended: dict, stl_tol: float, span: float) -> t
         # every mesh point within stl_tol of the surface: volume within stl_tol x area
         return V * v, V * v + stl_tol * intended["wetted_area_cm2"] * 100 / 1000
     if fig == "wetted_area_cm2":
-        return V * v, v * (V + 0.02 * stl_tol)
+        # a polygon inscribed in a section with sagitta <= stl_tol falls short of its length by
+        # about stl_tol/3 per radian turned (s θ²/24 with sagitta s θ²/8), 2π/3 stl_tol round a
+        # convex section whatever its nose radius; three times that per mm of span covers
+        # reflex camber and spanwise curvature (a fixed 0.2 % faulted a 40 mm chord part)
+        return V * v, V * v + 2 * math.pi * stl_tol * span / 100
     if fig.startswith("centroid"):
         return L, 2 * stl_tol + 0.1
     return L, stl_len
