@@ -65,6 +65,10 @@ def spec_params(draw):
         "te": draw(st.sampled_from([0.0, 0.3, 0.6, 1.0, 1.5])),
         "tip": draw(st.sampled_from(["flat", "flat", "round"])),
         "reference": draw(st.sampled_from([0.0, 0.25, 0.5])),
+        # parts off the datum planes (a mirrored stabilizer aft and below, a fin below the fuselage)
+        "position": draw(st.sampled_from([(0.0, 0.0, 0.0), (0.0, 0.0, 0.0),
+                                          (draw(st.floats(-500.0, 800.0)), draw(st.floats(-300.0, 300.0)),
+                                           draw(st.floats(-900.0, 200.0)))])),
         "stations": stations,
     }
 
@@ -79,6 +83,8 @@ def spec_text(p: dict) -> str:
               f'orientation = "{p["orientation"]}"', f'interpolation = "{p["interpolation"]}"',
               f'incidence = {p["incidence"]!r}', f'te_thickness = {p["te"]!r}', f'tip = "{p["tip"]}"',
               f'reference = {p["reference"]!r}']
+    if "position" in p:
+        lines.append(f'position = [{", ".join(repr(float(v)) for v in p["position"])}]')
     for s in p["stations"]:
         lines.append("[[surface.station]]")
         for k, v in s.items():

@@ -152,14 +152,14 @@ def test_check_without_a_mast_states_positions_from_the_datum_origin(tmp_path, w
     """A wing alone with a [flight] table is a normal spec (issue 11): the check writes its
     record, and the balance lines place the neutral point and the centre of pressure from the
     datum origin (there is no mast to measure from)."""
-    from geomgen.check.report import format_terminal
+    from geomgen.check.text import format_terminal
 
     text = wing_spec(te=0.0, stations=[dict(y=0, chord=150), dict(y=300, chord=100)])
     p = write_spec(text + "[flight]\nmass_kg = 60.0\nspeeds_kmh = [20.0, 25.0]\n")
     res = check(p, tmp_path / "o")
     assert res.balance["neutral_point_from_mast_mm"] is None
-    md = (tmp_path / "o" / "t-check.md").read_text()
-    assert json.loads((tmp_path / "o" / "t-check.json").read_text())["balance"] is not None
+    md = (tmp_path / "o" / "report/t-check.md").read_text()
+    assert json.loads((tmp_path / "o" / "report/t-check.json").read_text())["balance"] is not None
     for page in (md, format_terminal(res)):
         assert "the datum origin" in page and "the mast" not in page.split("CAUTION")[0].split("Balance")[-1]
     x = res.balance["neutral_point_x_mm"]

@@ -84,6 +84,28 @@ def test_valid_specs_give_valid_solids_measured_as_intended(params):
     assert meas["projected_area_cm2"] == pytest.approx(f.projected_area_cm2, rel=2e-3)
 
 
+@pytest.mark.slow
+@settings(max_examples=5 if PROFILE == "fast" else 10_000, derandomize=PROFILE == "fast")
+@given(spec_params())
+def test_every_spec_is_refused_with_its_cause_or_checks_clean(tmp_path_factory, params):
+    """Issue 15, through the command line: a plausible spec is either refused before anything
+    is written (exit 2 or 3, the part or the field named) or builds and its written files check
+    clean (exit 0: no geometry fault; these specs carry no expectations)."""
+    from geomgen.cli import main
+
+    d = tmp_path_factory.mktemp("fz")
+    p = d / "fz.toml"
+    p.write_text(spec_text(params))
+    out = d / "out"
+    r = CliRunner().invoke(main, ["check", str(p), "-o", str(out)])
+    assert "Traceback" not in r.output, r.output
+    if r.exit_code in (2, 3):
+        assert not out.exists() or not any(out.glob("*.step")), r.output
+        assert 'surface "part"' in r.output or "surface[0]" in r.output or "sections " in r.output, r.output
+        return
+    assert r.exit_code == 0, r.output
+
+
 BASE = spec_text({"a": "2412", "b": "0012", "invert_b": False, "thickness_b": None, "mirror": True,
                   "orientation": "horizontal", "interpolation": "linear", "incidence": 1.0, "te": 0.5,
                   "tip": "flat", "reference": 0.25,
@@ -128,3 +150,26 @@ def test_arbitrary_text_is_a_clean_spec_error(text):
         load_spec_text(text, "junk.toml")
     except SpecError as exc:
         assert all(p.startswith("junk.toml: ") for p in exc.problems)
+
+
+@pytest.mark.xfail(strict=True, reason="open (issue 15): the STL centroid of this mirrored vertical part sits "
+                   "0.63 mm off along the span, over its 0.2 mm tolerance, though the STL volume is within its own")
+def test_found_by_the_property_stl_centroid_of_a_long_mirrored_vertical_part():
+    """Found by test_every_spec_is_refused_with_its_cause_or_checks_clean: the STEP agrees with
+    the intended centroid; our tessellation of the skin (the STL) does not, along the span."""
+    import trimesh
+
+    from geomgen.build import Part
+    from geomgen.geometry.figures import centroid
+
+    p = {"a": "0006", "b": "0006", "invert_b": True, "thickness_b": 9.27, "mirror": True,
+         "orientation": "vertical-down", "interpolation": "linear", "incidence": 0.0, "te": 0.0, "tip": "flat",
+         "reference": 0.0, "position": (0.0, 0.0, 0.0),
+         "stations": [{"y": 0.0, "chord": 361.4, "section": "a"},
+                      {"y": 300.0, "chord": 143.891, "x": 0.0, "dihedral": -18.3, "twist": -2.36, "section": "a"},
+                      {"y": 524.632, "chord": 372.411, "x": 0.0, "dihedral": 13.19, "twist": 4.67, "section": "a"},
+                      {"y": 824.632, "chord": 368.976, "x": 0.0, "z": 34.05, "twist": -8.4, "section": "a"}]}
+    m = build_models(load_spec_text(spec_text(p), "fz.toml"))[0]
+    v, f = Part(m).mesh(0.05)
+    mesh = trimesh.Trimesh(v, f, process=True)
+    assert np.abs(mesh.center_mass - centroid(m)).max() <= 2 * 0.05 + 0.1

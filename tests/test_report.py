@@ -367,13 +367,15 @@ def test_balance_without_a_mast_shows_the_centre_of_pressure_from_the_datum_orig
     text = text[:text.index("# Mast: vertical")] + text[text.index("[flight]"):]
     spec = tmp_path / "no-mast.toml"
     spec.write_text(text)
-    data = report_data(spec, tmp_path / "out", check_result=fake_check(spec, tmp_path / "out"))
+    project = Project(spec, tmp_path / "out")
+    project.memo("check.result", lambda: fake_check(spec, tmp_path / "out"))
+    data = report_data(project)
     b = data["balance"]
     assert b["mast_x_mm"] is None
     files = render_files(data)
-    md = files["lakeside-cruiser-report.md"].decode()
+    md = files["report/lakeside-cruiser-report.md"].decode()
     assert "centre of pressure datum x from the origin mm" in md and "from mast" not in md
-    page = parse(files["lakeside-cruiser-report.html"].decode())
+    page = parse(files["report/lakeside-cruiser-report.html"].decode())
     shown = dict(page.values)
     for i, t in enumerate(b["trim"]):
         assert shown[f"balance/trim/{i}/cp_x_mm"] == format(t["cp_x_mm"], "+.1f")

@@ -7,7 +7,9 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .. import CAUTION, __version__
-from ..errors import CheckFailed, ExportError, SpecError
+from ..errors import CheckFailed, ExportError
+from ..geometry.figures import intended_figures
+from ..geometry.slices import Frame
 from ..outputs import Output, output_name, output_state, stale_outputs, write_set
 from ..project import Project
 from .compare import Record, compare_part, station_records
@@ -95,22 +97,21 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
         step_name, stl_name = names[m.name]
         step_path, stl_path = out / step_name, out / stl_name
         ys = sorted({float(v) for v in m.planform.y} | {float(c.y) for c in sspec.check_at})
+        frame = Frame(**m.span_frame())
         try:
             solids = measure_step(step_path)
             if len(solids) != 1:
                 raise CheckFailed(f'surface "{m.name}": {step_name} holds {len(solids)} solids, expected one; '
                                   "this is a geometry fault: rebuild before machining")
-            ms = measure_step_solid(solids[0], ys)
+            ms = measure_step_solid(solids[0], ys, frame)
         except (ExportError, ValueError, IndexError, ArithmeticError) as exc:
             raise CheckFailed(f'surface "{m.name}": the written {step_name} cannot be measured ({exc}); '
                               "this is a geometry fault: rebuild before machining") from None
         try:
-            st = measure_stl(stl_path)
+            st = measure_stl(stl_path, frame)
         except (OSError, ValueError, IndexError, ArithmeticError) as exc:
             raise CheckFailed(f'surface "{m.name}": the written {stl_name} cannot be measured ({exc}); '
                               "this is a geometry fault: rebuild before printing") from None
-        from ..geometry.figures import intended_figures
-
         intended = intended_figures(m).as_dict()
         expect = {k: getattr(sspec.expect, k) for k in type(sspec.expect).model_fields} if sspec.expect else {}
         records += compare_part(m.name, intended, ms["figures"], st["figures"], project.stl_tol,
@@ -124,12 +125,15 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
                       {"build_or_reuse": t1 - t0, "kernel_import": t2 - t1, "measure": t3 - t2}, project.stl_tol)
     res.modified, res.stale, res.notes = modified, stale, notes
     if project.spec.flight is not None:
+        from ..errors import GeomgenError
         from ..hydro import balance_of
 
         try:
             res.balance = balance_of(project).as_dict()
-        except SpecError as exc:
-            res.balance_skipped = "; ".join(exc.problems)
+        except GeomgenError as exc:  # the geometry check stands on its own; say why there is no balance
+            why = "; ".join(getattr(exc, "problems", None) or [str(exc)])
+            have = ", ".join(f'{m.role} "{m.name}" ({m.orientation})' for m in project.models)
+            res.balance_skipped = f"[flight] balance skipped: {why} (this spec has: {have})"
     if write_record:
         from .text import format_markdown
 

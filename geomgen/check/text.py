@@ -104,7 +104,7 @@ def format_terminal(res) -> str:
     if res.balance:
         out += [""] + balance_lines(res)
     if res.balance_skipped:
-        out += ["", f"Balance skipped: {res.balance_skipped}"]
+        out += ["", res.balance_skipped]
     out += [f"note: {n}" for n in res.notes]
     out += ["", "CAUTION: " + CAUTION]
     return "\n".join(out)
@@ -123,6 +123,6 @@ def format_markdown(res) -> str:
     if res.balance:
         out += ["", "## Balance", ""] + [f"- {line.strip()}" for line in balance_lines(res)]
     if res.balance_skipped:
-        out += ["", "## Balance", "", f"Skipped: {res.balance_skipped}"]
+        out += ["", "## Balance", "", f"- {res.balance_skipped}"]
     out += ["", "## Caution", "", CAUTION, ""]
     return "\n".join(out)

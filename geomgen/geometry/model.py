@@ -96,19 +96,36 @@ def _bulges(model: SurfaceModel) -> list[str]:
     return []
 
 
+def chord_problems(model: SurfaceModel) -> list[str]:
+    """A chord curve that drops to zero or below between stations (a smooth spline through
+    uneven stations): the surface, the two stations around it, the low point, what passes."""
+    ys = np.linspace(model.planform.y[0], model.planform.half_span, 1601)
+    chords = model.planform("chord", ys)
+    if not (chords <= 0).any():
+        return []
+    st = model.planform.y
+    out = []
+    bad = chords <= 0
+    for i in range(len(st) - 1):  # one message per station interval where it happens
+        m = bad & (ys >= st[i]) & (ys <= st[i + 1])
+        if not m.any():
+            continue
+        k = int(np.argmin(np.where(m, chords, np.inf)))
+        out.append(f'surface "{model.name}" chord: the smooth curve through the station chords drops below zero '
+                   f"between station[{i}] (y={st[i]:g}) and station[{i + 1}] (y={st[i + 1]:g}), to "
+                   f"{chords[k]:.1f} mm at y = {ys[k]:.1f} mm; what passes: interpolation = \"linear\", a station "
+                   "near that point, or station chords that change more evenly")
+    return out
+
+
 def check_geometry(model: SurfaceModel, where) -> list[str]:
     """Geometry that cannot be made: chord <= 0 between stations, a section that crosses itself.
 
     Sections lie in planes of constant span and the skin's span parameter is the span
     position itself, so the skin crosses itself exactly where a cross-section does.
     """
-    out = []
-    ys = np.linspace(model.planform.y[0], model.half_span, 801)
-    chords = model.chord(ys)
-    if (chords <= 0).any():
-        y = float(ys[np.argmin(chords)])
-        out.append(f'surface "{model.name}": the smooth chord curve through the stations drops to '
-                   f"{chords.min():.1f} mm at y = {y:.1f} mm; add a station there or use linear interpolation")
+    out = chord_problems(model)
+    if out:
         return out
     if model.spec.interpolation == "smooth":
         out += _bulges(model)
@@ -123,8 +140,17 @@ def check_geometry(model: SurfaceModel, where) -> list[str]:
     return out
 
 
+def _uses(st) -> set:
+    return {st.section} | ({st.blend.section} if st.blend else set())
+
+
 def build_models(spec, source: str | Path = "<spec>") -> list[SurfaceModel]:
-    """Build every surface of ``spec``; raise :class:`SpecError` with all problems found."""
+    """Build every surface of ``spec``; raise with every problem found in one run.
+
+    Spec problems (a coordinate file that cannot be read, a trailing edge the sections cannot
+    carry) raise :class:`SpecError` (with any geometry problems of the other surfaces listed
+    too); geometry that cannot be made alone raises :class:`GeometryError`. A surface whose
+    sections failed is not checked further (its geometry is unknown)."""
     src = Path(getattr(spec, "_source", source))
     base_dir = src.parent
     problems: list[str] = []
@@ -135,12 +161,12 @@ def build_models(spec, source: str | Path = "<spec>") -> list[SurfaceModel]:
         except SpecError as exc:
             problems += [f"{src}: sections {name}: {p}" if not p.startswith(str(src)) else p
                          for p in exc.problems]
-    if problems:
-        raise SpecError(problems)
 
-    models = []
+    models, faults = [], []
     for i, sf in enumerate(spec.surface):
         st = sf.station
+        if any(not _uses(s) <= set(sections) for s in st):
+            continue  # its section problems are listed above
         xs, zs = station_offsets(st)
         keys = [_station_key(s) for s in st]
         blended = {}
@@ -151,6 +177,10 @@ def build_models(spec, source: str | Path = "<spec>") -> list[SurfaceModel]:
                       keys, sf.interpolation)
         model = SurfaceModel(sf, pf, blended)
         model.named_sections = sections
+        chord = chord_problems(model)
+        if chord:  # the real cause first; a trailing-edge limit at a negative chord means nothing
+            faults += chord
+            continue
         where = sorted({float(abs(v)) for seg in model.loft_y() for v in seg} | {s.y for s in st})
         bad = _check_trailing_edge(model, where)
         if bad:
@@ -159,15 +189,16 @@ def build_models(spec, source: str | Path = "<spec>") -> list[SurfaceModel]:
             problems.append(
                 f'{src}: surface[{i}] "{sf.name}" te_thickness: {sf.te_thickness:g} mm is thicker than the '
                 f"section allows at {at}: at most {limit:.2f} mm (half the {t:.2f} mm thickness at "
-                f"{defaults.TE_RAMP_START:.0%} chord where the edge finishing starts)")
+                f"{defaults.TE_RAMP_START:.0%} chord where the edge finishing starts); what passes: "
+                f"te_thickness <= {limit:.2f}, a thicker section or a longer chord there")
+            continue
         models.append(model)
-    if problems:
-        raise SpecError(problems)
-    faults = []
     for model in models:
         mids = [0.5 * (a + b) for seg in model.loft_y() for a, b in zip(seg[:-1], seg[1:])]
         where = sorted({float(abs(v)) for seg in model.loft_y() for v in seg} | {abs(v) for v in mids})
         faults += check_geometry(model, where)
+    if problems:
+        raise SpecError(problems + [f"{src}: {f}" for f in faults])
     if faults:
         raise GeometryError("; ".join(faults) + "; nothing was written")
     return models

@@ -23,6 +23,25 @@ GAUSS = 4
 INTERVALS = 40
 
 
+@dataclass
+class Frame:
+    """Where the caller says a part lies, so the files are measured where the spec put the part
+    (never what they should measure): datum span axis (1 = y, 2 = z), ``sign`` of the root-to-tip
+    direction along it, span coordinate ``root`` of the root plane (the centre plane of a
+    mirrored part) and ``mirrored``. Without a frame the measurement guesses from the shape,
+    which is ambiguous (a mirrored part off the datum plane, a span shorter than the root's
+    thickness)."""
+
+    axis: int
+    sign: float
+    root: float
+    mirrored: bool
+
+    def ends(self, lo: float, hi: float) -> tuple[float, float]:
+        """(root, tip) span coordinates on a part measured from ``lo`` to ``hi``."""
+        return self.root, (hi if self.sign > 0 else lo)
+
+
 def span_axis_of(bbox_min, bbox_max) -> int:
     """Datum axis (1 = y, 2 = z) along which the part spans: the longer of its y and z extents."""
     ext = np.asarray(bbox_max) - np.asarray(bbox_min)
@@ -46,23 +65,88 @@ def gauss_nodes(a: float, b: float) -> tuple[np.ndarray, np.ndarray]:
 
 
 # -- slices of a B-spline skin ---------------------------------------------------------
+def _grid_params(t: np.ndarray, deg: int, per_span: int) -> np.ndarray:
+    kn = np.unique(t[deg:len(t) - deg])
+    f = np.linspace(0, 1, per_span + 1)[:-1]
+    return np.append((kn[:-1, None] + (kn[1:] - kn[:-1])[:, None] * f).ravel(), kn[-1])
+
+
 def skin_grid(skin: Skin, per_span: int = 6) -> tuple[np.ndarray, float]:
     """Dense sample grid (nu, nv, 3) of a skin and its sampling deviation bound (mm).
 
     Samples ``per_span`` points in every knot span; the bound is the largest distance of a
     parameter midpoint from the straight line between its two neighbours, in either direction.
     """
-    def params(t, deg):
-        kn = np.unique(t[deg:len(t) - deg])
-        f = np.linspace(0, 1, per_span + 1)[:-1]
-        return np.append((kn[:-1, None] + (kn[1:] - kn[:-1])[:, None] * f).ravel(), kn[-1])
-
-    u, v = params(skin.tu, skin.du), params(skin.tv, skin.dv)
+    u, v = _grid_params(skin.tu, skin.du, per_span), _grid_params(skin.tv, skin.dv, per_span)
     grid = skin.evaluate(u, v)
     um, vm = 0.5 * (u[1:] + u[:-1]), 0.5 * (v[1:] + v[:-1])
     du = np.linalg.norm(skin.evaluate(um, v) - 0.5 * (grid[1:] + grid[:-1]), axis=-1).max()
     dv = np.linalg.norm(skin.evaluate(u, vm) - 0.5 * (grid[:, 1:] + grid[:, :-1]), axis=-1).max()
     return grid, float(max(du, dv))
+
+
+class SkinSlicer:
+    """Slices of a skin in planes ``span = s``, on the skin itself (not on a sampled grid).
+
+    Chordwise the skin is sampled at ``per_span`` points per knot span (fixed u columns);
+    each column is a B-spline curve across the span, and the point where it meets a plane is
+    found on that curve: a start from the sampled grid, then Newton steps on the span
+    coordinate. (Interpolating between grid samples instead cut the corners of a round tip:
+    its projected area came out 0.08 % low at 8 loft sections over the tip.)
+    """
+
+    def __init__(self, skin: Skin, axis: int, per_span: int = 6):
+        from scipy.interpolate import BSpline
+
+        self.skin, self.axis = skin, axis
+        self.u = _grid_params(skin.tu, skin.du, per_span)
+        self.v = _grid_params(skin.tv, skin.dv, per_span)
+        self.grid = skin.evaluate(self.u, self.v)
+        # chordwise sampling bound (spanwise the slices are exact): midpoints vs chords
+        um = 0.5 * (self.u[1:] + self.u[:-1])
+        self.sampling_mm = float(np.linalg.norm(skin.evaluate(um, self.v) - 0.5 * (self.grid[1:] + self.grid[:-1]),
+                                                axis=-1).max())
+        self.cols = BSpline(skin.tu, skin.poles, skin.du, axis=0)(self.u)  # (nu, nv poles, 3)
+        t, p = skin.tv, skin.dv
+        den = (t[p + 1:len(t) - 1] - t[1:len(t) - p - 1])
+        self.dcols = p * (self.cols[:, 1:] - self.cols[:, :-1]) / np.where(den > 0, den, 1.0)[None, :, None]
+
+    def _at(self, ci: np.ndarray, v: np.ndarray, deriv: bool = False) -> np.ndarray:
+        """Points (or d/dv) of columns ``ci`` at span parameters ``v`` (both (N,))."""
+        from scipy.interpolate import BSpline
+
+        t, k = (self.skin.tv[1:-1], self.skin.dv - 1) if deriv else (self.skin.tv, self.skin.dv)
+        c = self.dcols if deriv else self.cols
+        v = np.clip(v, t[k], t[len(t) - k - 1])
+        B = BSpline.design_matrix(v, t, k).tocsr()
+        idx = B.indices.reshape(-1, k + 1)
+        data = B.data.reshape(-1, k + 1)
+        return np.einsum("nk,nkd->nd", data, c[ci[:, None], idx])
+
+    def slice(self, s) -> np.ndarray:
+        """Ordered slices (len(s), nu, 3) at span positions ``s``."""
+        s = np.atleast_1d(np.asarray(s, float))
+        g = self.grid[:, :, self.axis]
+        v = self.v
+        if g[0, -1] < g[0, 0]:
+            g, v = g[:, ::-1], v[::-1]
+        if (np.diff(g, axis=1) < -1e-9).any():
+            raise ValueError("the skin folds back along the span; it cannot be sliced column-wise")
+        nu = g.shape[0]
+        j = np.clip(np.stack([np.searchsorted(col, s, side="left") - 1 for col in g]), 0, g.shape[1] - 2)
+        iu = np.arange(nu)[:, None]
+        g0, g1 = g[iu, j], g[iu, j + 1]
+        f = np.clip((s[None, :] - g0) / np.where(g1 > g0, g1 - g0, 1.0), 0.0, 1.0)
+        vv = (v[j] + f * (v[j + 1] - v[j])).ravel()  # (nu * ns,)
+        ci = np.repeat(np.arange(nu), len(s))
+        target = np.tile(s, nu)
+        lo, hi = self.skin.v_range
+        for _ in range(3):
+            dg = self._at(ci, vv, deriv=True)[:, self.axis]
+            ok = np.abs(dg) > 1e-12
+            step = np.where(ok, (self._at(ci, vv)[:, self.axis] - target) / np.where(ok, dg, 1.0), 0.0)
+            vv = np.clip(vv - step, lo, hi)
+        return self._at(ci, vv).reshape(nu, len(s), 3).transpose(1, 0, 2)
 
 
 def slice_grid(grid: np.ndarray, axis: int, s: np.ndarray) -> np.ndarray:
@@ -86,24 +170,53 @@ def slice_grid(grid: np.ndarray, axis: int, s: np.ndarray) -> np.ndarray:
     return pts.transpose(1, 0, 2)
 
 
-def chord_and_thickness(sl: np.ndarray, axis: int) -> dict:
-    """True chord, max thickness (mm) and its position (% chord) of an ordered slice (n, 3).
+def section_diameter(points: np.ndarray) -> tuple[float, int, int]:
+    """(largest distance between two points of a section, index of one end, of the other).
 
-    The chord runs from the trailing-edge midpoint (between the two ends of the polyline) to
-    the point farthest from it (the leading edge); thickness is measured normal to it.
+    The section lies in a plane; the pair is searched among its convex hull's vertices.
     """
-    te = 0.5 * (sl[0] + sl[-1])
-    d = np.linalg.norm(sl - te, axis=1)
-    i_le = int(np.argmax(d))
-    chord = float(d[i_le])
-    e = (te - sl[i_le]) / chord
+    from scipy.spatial import ConvexHull
+
+    p = np.asarray(points, float)
+    keep = np.ptp(p, axis=0) > 1e-9 * max(float(np.ptp(p)), 1e-300)
+    idx = np.arange(len(p))
+    if keep.sum() == 2:
+        try:
+            idx = ConvexHull(p[:, keep]).vertices
+        except Exception:  # degenerate hull: use every point
+            pass
+    q = p[idx]
+    d = np.linalg.norm(q[:, None, :] - q[None, :, :], axis=-1)
+    i, j = np.unravel_index(int(np.argmax(d)), d.shape)
+    return float(d[i, j]), int(idx[i]), int(idx[j])
+
+
+def chord_and_thickness(sl: np.ndarray, axis: int) -> dict:
+    """Chord, max thickness (mm) and its position (% chord) of an ordered section polyline (n, 3)
+    (upper trailing edge -> leading edge -> lower trailing edge).
+
+    This is the one definition of both figures, used for the intended section (sampled from
+    the model) and for the measured one (sliced from the written file):
+
+    * chord: the section's largest extent, the distance between its two farthest points
+      (leading edge and trailing edge, or a trailing-edge corner when the edge is finite),
+      as a caliper measures it. On a cambered section it exceeds the nominal chord a little
+      (the upper surface lies ahead of the mean line's leading edge).
+    * thickness: the largest distance between upper and lower surface measured normal to
+      that chord line, at equal position along it.
+    """
+    chord, i, j = section_diameter(sl)
+    n = len(sl)
+    # the leading edge is the end of the pair farther (in index) from the polyline's ends
+    i_le, i_te = (i, j) if min(i, n - 1 - i) >= min(j, n - 1 - j) else (j, i)
+    e = (sl[i_te] - sl[i_le]) / chord
     plane_axes = [k for k in range(3) if k != axis]
     # normal to the chord within the section plane
-    n = np.zeros(3)
+    nrm = np.zeros(3)
     a, b = plane_axes
-    n[a], n[b] = -e[b], e[a]
+    nrm[a], nrm[b] = -e[b], e[a]
     x = (sl - sl[i_le]) @ e
-    h = (sl - sl[i_le]) @ n
+    h = (sl - sl[i_le]) @ nrm
     up_x, up_h = x[: i_le + 1][::-1], h[: i_le + 1][::-1]
     lo_x, lo_h = x[i_le:], h[i_le:]
     xs = np.linspace(0, chord, 4001)
@@ -111,6 +224,44 @@ def chord_and_thickness(sl: np.ndarray, axis: int) -> dict:
     k = int(np.argmax(t))
     return {"chord_mm": chord, "thickness_mm": float(t[k]), "thickness_pct": 100 * float(t[k]) / chord,
             "at_pct": 100 * xs[k] / chord}
+
+
+def _gauss_params(t: np.ndarray, deg: int, nodes: int) -> tuple[np.ndarray, np.ndarray]:
+    kn = np.unique(t[deg:len(t) - deg])
+    xg, wg = np.polynomial.legendre.leggauss(nodes)
+    a, b = kn[:-1, None], kn[1:, None]
+    return (0.5 * (b - a) * xg + 0.5 * (a + b)).ravel(), (0.5 * (b - a) * wg).ravel()
+
+
+def skin_volume_centroid(skin: Skin) -> tuple[float, np.ndarray]:
+    """(volume mm³, centroid (3,) mm) of the solid bounded by a skin, its ruled trailing-edge
+    strip (between the skin's u = 0 and u = 1 edges; nothing when they coincide) and two end
+    caps in planes normal to the span axis.
+
+    Divergence theorem with fields that have only an x component (V = ∮x nₓ dA,
+    ∫x dV = ∮x²/2 nₓ dA, ∫y dV = ∮xy nₓ dA, ∫z dV = ∮xz nₓ dA), so the caps (nₓ = 0) add
+    nothing. Inside a knot span the integrands are polynomials of degree ≤ 11 in u and in v
+    for a bicubic skin, so 6 Gauss-Legendre nodes per span integrate them exactly.
+    """
+    nodes = max(skin.du, skin.dv) + 3
+    u, wu = _gauss_params(skin.tu, skin.du, nodes)
+    v, wv = _gauss_params(skin.tv, skin.dv, nodes)
+    p = skin.evaluate(u, v)
+    su, sv = skin.derivatives(u, v)
+    nx = np.cross(su, sv)[..., 0] * (wu[:, None] * wv[None, :])
+    x = p[..., 0]
+    acc = np.array([np.sum(x * nx), np.sum(0.5 * x**2 * nx), np.sum(x * p[..., 1] * nx), np.sum(x * p[..., 2] * nx)])
+    # the ruled strip q(t, v) from the u = 1 edge back to the u = 0 edge closes each section
+    e = skin.evaluate([0.0, 1.0], v)
+    _, ev = skin.derivatives([0.0, 1.0], v)
+    tg, tw = np.polynomial.legendre.leggauss(nodes)
+    qt = e[0] - e[1]
+    for t, wt in zip(0.5 * tg + 0.5, 0.5 * tw):
+        q = (1 - t) * e[1] + t * e[0]
+        n = np.cross(qt, (1 - t) * ev[1] + t * ev[0])[:, 0] * wv * wt
+        acc += [np.sum(q[:, 0] * n), np.sum(0.5 * q[:, 0] ** 2 * n), np.sum(q[:, 0] * q[:, 1] * n),
+                np.sum(q[:, 0] * q[:, 2] * n)]
+    return abs(float(acc[0])), acc[1:] / acc[0]
 
 
 # -- planform figures from slice extents -------------------------------------------------

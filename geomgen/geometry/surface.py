@@ -138,6 +138,17 @@ class SurfaceModel:
         """(3,) datum direction of local Y (unchanged by incidence)."""
         return ORIENTATION[self.orientation][:, 1]
 
+    def span_frame(self) -> dict:
+        """Where the part lies along its span, for measuring its files: datum ``axis`` index
+        (1 = y, 2 = z), ``sign`` of the root-to-tip direction along it, datum coordinate
+        ``root`` of the root plane (the centre plane of a mirrored part), ``mirrored``.
+        Sections lie in planes of constant local Y, which incidence and twist leave alone."""
+        d = self.span_axis
+        axis = int(np.argmax(np.abs(d)))
+        sign = float(np.sign(d[axis]))
+        y0 = 0.0 if self.mirror else float(self.planform.y[0])
+        return {"axis": axis, "sign": sign, "root": float(self.position[axis]) + sign * y0, "mirrored": self.mirror}
+
     @property
     def lift_axis(self) -> np.ndarray:
         """(3,) datum normal of the projection plane (z for horizontal, y for vertical)."""

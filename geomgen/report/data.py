@@ -289,4 +289,6 @@ def report_data(project, out_dir=None, *, progress=None, drawing: dict | None = 
         recs = {r.figure: r for r in res.records if r.part == s["name"]}
         s["measured"] = {k: recs[k].measured for k in MAIN_FIGURES if k in recs}
     data["check"] = _check_section(res)
+    if res.balance_skipped:
+        data["balance_skipped"] = res.balance_skipped
     return _clean(data)

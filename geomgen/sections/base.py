@@ -157,14 +157,21 @@ class Section:
         """
         delta = te - self.te_thickness()
         up, lo = self._upper, self._lower
+        # a sharp edge (te = 0) is one point: a cambered section laid perpendicular to its
+        # mean line ends its two sides at different x (NACA open edge: 2 y_t(1) sin θ apart),
+        # so the same ramp also brings them to their mean x
+        one = np.array([1.0])
+        dx = float(lo(one)[0][0] - up(one)[0][0]) if te == 0 else 0.0
 
         def new_up(s):
             x, y = up(s)
-            return x, y + 0.5 * delta * te_ramp(s, start)
+            r = te_ramp(s, start)
+            return x + 0.5 * dx * r, y + 0.5 * delta * r
 
         def new_lo(s):
             x, y = lo(s)
-            return x, y - 0.5 * delta * te_ramp(s, start)
+            r = te_ramp(s, start)
+            return x - 0.5 * dx * r, y - 0.5 * delta * r
 
         return Section(new_up, new_lo, self.label, self.fit_deviation)
 
