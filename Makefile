@@ -13,8 +13,12 @@ $(STAMP): pyproject.toml
 .PHONY: demo test test-fast bench setup fuzz-long
 setup: $(STAMP)
 
+# The demo set into out/demo-foilset (the default folder rule: out/<spec file name>):
+# solids and meshes, the shaper's drawings, then the report (which checks the files first).
 demo: $(STAMP)
-	$(BIN)/geomgen build specs/demo-foilset.toml -o out/demo
+	$(BIN)/geomgen build specs/demo-foilset.toml
+	$(BIN)/geomgen drawings specs/demo-foilset.toml
+	$(BIN)/geomgen report specs/demo-foilset.toml
 
 test: $(STAMP)
 	$(BIN)/python -m pytest -q

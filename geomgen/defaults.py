@@ -52,3 +52,30 @@ CHECK_RELATIVE = 5e-4        # areas, aspect ratio, taper (STEP), relative
 CHECK_VOLUME_REL = 1e-3      # volume and wetted area (STEP), relative
 CHECK_ANGLE_DEG = 0.05       # quarter-chord sweep
 CHECK_THICKNESS_MM = 0.03    # section thickness at stations (STEP)
+
+# -- kernel tolerances (the CAD edge, geomgen/cad/) ----------------------------------------------
+#: Sewing tolerance of the skin, trailing-edge strip and caps, mm: far below any feature, far
+#: above the skin's own closure error (the poles are shared, so edges match to ~1e-9 mm).
+KERNEL_SEW_TOL_MM = 1e-4
+
+#: Tolerance given to faces made from B-spline surfaces, mm (the surface is exact; this only
+#: sizes the face's own edges).
+KERNEL_FACE_TOL_MM = 1e-7
+
+#: Point classifier tolerance (feature probe points inside before a cut, outside after), mm.
+KERNEL_CLASSIFIER_TOL_MM = 1e-6
+
+#: Volume bookkeeping of a boolean cut: |V_before - V_after - V_removed| must stay within
+#: BOOLEAN_VOLUME_REL x V_before + BOOLEAN_REMOVED_REL x V_removed (the removed volume is a
+#: common with curved tools, integrated less exactly than the part).
+BOOLEAN_VOLUME_REL = 1e-5
+BOOLEAN_REMOVED_REL = 1e-3
+
+#: Shop parts: the pieces, halves or cut part plus what the features removed must add up to
+#: the whole part within this fraction of its volume, else nothing is written.
+SHOP_VOLUME_BALANCE_REL = 1e-3
+
+#: Kernel meshes of shop parts: edge end nodes closer than this are one vertex, mm; edges
+#: shorter than min(this, 5 % of the chordal tolerance) are collapsed (single-precision STL).
+MESH_MERGE_TOL_MM = 1e-5
+MESH_SHORT_EDGE_MM = 1e-3

@@ -28,8 +28,7 @@ from .. import defaults
 from ..errors import GeometryError
 from ..geometry.skin import DEGREE, Skin, build_skin
 
-#: Sewing tolerance, mm: far below any feature, far above the skin's own closure error.
-SEW_TOL = 1e-4
+SEW_TOL = defaults.KERNEL_SEW_TOL_MM  # see defaults
 
 
 def _knots(t: np.ndarray):
@@ -79,11 +78,11 @@ def _cap(surface: Geom_BSplineSurface, v: float, te_open: bool):
 def solid_from_skin(skin: Skin, te_open: bool, name: str = "surface") -> TopoDS_Shape:
     """Closed solid from a skin; raise GeometryError if the result is not a valid solid."""
     skin_srf = bspline_surface(skin.poles, skin.tu, skin.tv)
-    faces = [BRepBuilderAPI_MakeFace(skin_srf, 1e-7).Face()]
+    faces = [BRepBuilderAPI_MakeFace(skin_srf, defaults.KERNEL_FACE_TOL_MM).Face()]
     if te_open:
         te_poles = np.stack([skin.poles[-1], skin.poles[0]])  # lower TE curve -> upper TE curve
         te_srf = bspline_surface(te_poles, [0.0, 0.0, 1.0, 1.0], skin.tv, du=1)
-        faces.append(BRepBuilderAPI_MakeFace(te_srf, 1e-7).Face())
+        faces.append(BRepBuilderAPI_MakeFace(te_srf, defaults.KERNEL_FACE_TOL_MM).Face())
     v0, v1 = skin.v_range
     faces += [_cap(skin_srf, v0, te_open), _cap(skin_srf, v1, te_open)]
 

@@ -11,6 +11,7 @@ from OCP.TopLoc import TopLoc_Location
 from OCP.TopoDS import TopoDS
 from OCP.TopTools import TopTools_IndexedMapOfShape
 
+from .. import defaults
 from ..errors import ExportError
 
 
@@ -80,10 +81,10 @@ def mesh(shape, tol: float, what: str, angle: float = 0.5) -> tuple[np.ndarray, 
     # edge ends meet at the solid's vertices: match those (and only those) by position
     lab = np.arange(len(Vg))
     ends = np.unique(ends)
-    for i, j in cKDTree(Vg[ends]).query_pairs(1e-5):
+    for i, j in cKDTree(Vg[ends]).query_pairs(defaults.MESH_MERGE_TOL_MM):
         a, b = lab[ends[i]], lab[ends[j]]
         lab[lab == max(a, b)] = min(a, b)
-    Vg, F = _collapse_short_edges(Vg, lab[F], min(1e-3, 0.05 * tol))
+    Vg, F = _collapse_short_edges(Vg, lab[F], min(defaults.MESH_SHORT_EDGE_MM, 0.05 * tol))
     if not closed(F):
         raise ExportError(f"{what}: the kernel's mesh is not watertight; nothing was written")
     if len(np.unique(Vg.astype(np.float32), axis=0)) != len(Vg):

@@ -135,7 +135,7 @@ def state(solid, point) -> str:
     from OCP.BRepClass3d import BRepClass3d_SolidClassifier
     from OCP.TopAbs import TopAbs_IN, TopAbs_OUT
 
-    st = BRepClass3d_SolidClassifier(solid, _P(point), 1e-6).State()
+    st = BRepClass3d_SolidClassifier(solid, _P(point), defaults.KERNEL_CLASSIFIER_TOL_MM).State()
     return "in" if st == TopAbs_IN else "out" if st == TopAbs_OUT else "on"
 
 
@@ -160,7 +160,7 @@ def cut_features(shape, tools, what: str, probes=None) -> tuple[object, float, f
 
     ``probes``: tool -> list of points (default: the tool's own probe)."""
     v0 = volume_mm3(shape)
-    tol = lambda v, rem: 1e-5 * v + 1e-3 * rem
+    tol = lambda v, rem: defaults.BOOLEAN_VOLUME_REL * v + defaults.BOOLEAN_REMOVED_REL * rem
     try:
         cur, removed, _ = _cut_steps(shape, v0, tools, what, probes, each=False)
         v1 = volume_mm3(cur)
@@ -187,7 +187,7 @@ def _cut_steps(shape, v0, tools, what, probes, each: bool):
                                         "nothing was written")
                 rem = sum(volume_mm3(x) for x in solids(_run(BRepAlgoAPI_Common(), [cur], [tool], f"{what}: {label}")))
                 v_res = volume_mm3(res) if each else None
-                if each and abs(v_cur - v_res - rem) > 1e-5 * v_cur + 1e-3 * rem:
+                if each and abs(v_cur - v_res - rem) > tol(v_cur, rem):
                     raise GeometryError(f"{what}: {label}: the cut part and the removed material ({rem:.1f} mm³) do "
                                         f"not add up ({v_cur - v_res:.1f} mm³ left the part); nothing was written")
                 break
@@ -228,7 +228,7 @@ def plane_face(origin, normal, xdir, half: float):
 
 
 def skin_face(skin):
-    return BRepBuilderAPI_MakeFace(bspline_surface(skin.poles, skin.tu, skin.tv, skin.du, skin.dv), 1e-7).Face()
+    return BRepBuilderAPI_MakeFace(bspline_surface(skin.poles, skin.tu, skin.tv, skin.du, skin.dv), defaults.KERNEL_FACE_TOL_MM).Face()
 
 
 def prism(polygon, vec):
@@ -284,4 +284,4 @@ def sub_skin(skin, v0: float, v1: float):
     srf = bspline_surface(skin.poles, skin.tu, skin.tv, skin.du, skin.dv)
     u0, u1 = float(skin.tu[0]), float(skin.tu[-1])
     srf.Segment(u0, u1, float(v0), float(v1))
-    return skin_of(_MF(srf, 1e-7).Face())
+    return skin_of(_MF(srf, defaults.KERNEL_FACE_TOL_MM).Face())

@@ -63,7 +63,7 @@ def laminate_outputs(model, solid, name_of, say) -> tuple[list, dict]:
         halves.sort(key=lambda sh: -float(centroid(sh) @ rf.normal))
         v = volume_mm3(solid)
         vh = [volume_mm3(h) for h in halves]
-        if abs(sum(vh) - v) > 1e-3 * v:
+        if abs(sum(vh) - v) > defaults.SHOP_VOLUME_BALANCE_REL * v:
             raise GeometryError(f"{what}: the halves ({sum(vh):.0f} mm³) do not add up to the part ({v:.0f} mm³); "
                                 "nothing was written")
         rep["mould"] = {"parting": lam.parting, "volume_part_mm3": v, "halves": []}

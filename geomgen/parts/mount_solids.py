@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .. import defaults
 from ..errors import GeometryError
 from .mount import plan_mount, plan_shims
 from ..cad.loft import volume_mm3
@@ -24,7 +25,7 @@ def mount_outputs(model, solid, spec, name_of, say, flight_words=None) -> tuple[
     say(f"cutting the mount of {model.name}")
     what = f'surface "{model.name}" mount'
     mounted, removed, v0, v1 = cut_features(prepared(solid, what), plan.tools, what)
-    if abs(v0 - v1 - removed) > 1e-3 * v0:
+    if abs(v0 - v1 - removed) > defaults.SHOP_VOLUME_BALANCE_REL * v0:
         raise GeometryError(f"{what}: the cut part ({v1:.0f} mm³) and the removed features ({removed:.0f} mm³) do "
                             f"not add up to the part ({v0:.0f} mm³); nothing was written")
     rep = dict(plan.report)

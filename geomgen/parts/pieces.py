@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .. import defaults
 from ..errors import GeometryError
 from .frame import Frame, Tool
 from .mount import plan_mount
@@ -66,7 +67,7 @@ def print_outputs(model, name_of, say) -> tuple[list, dict]:
         vols.append(vol)
         removed += rem
     err = abs(sum(vols) + removed - v_whole)
-    if err > 1e-3 * v_whole:
+    if err > defaults.SHOP_VOLUME_BALANCE_REL * v_whole:
         raise GeometryError(f"{what}: pieces ({sum(vols):.0f} mm³) and removed features ({removed:.0f} mm³) do not "
                             f"add up to the part ({v_whole:.0f} mm³); nothing was written")
     outs, pieces = [], []
