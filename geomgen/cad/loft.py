@@ -9,7 +9,6 @@ the skin's end section curves. Faces are sewn, made a solid, oriented outward an
 from __future__ import annotations
 
 import numpy as np
-from OCP.BRep import BRep_Builder
 from OCP.BRepBuilderAPI import (BRepBuilderAPI_MakeEdge, BRepBuilderAPI_MakeFace, BRepBuilderAPI_MakeSolid,
                                 BRepBuilderAPI_MakeWire, BRepBuilderAPI_Sewing)
 from OCP.BRepCheck import BRepCheck_Analyzer

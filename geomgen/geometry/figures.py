@@ -181,6 +181,3 @@ def section_figures(model, y: float) -> dict:
     return chord_and_thickness(model.section_loop(float(y), SECTION_POINTS), axis)
 
 
-def station_thickness(model, ys=None) -> list[dict]:
-    """Max thickness (mm, % chord) and its chord position (% chord) at the stations (or ``ys``)."""
-    return [{"y_mm": float(y), **section_figures(model, float(y))} for y in (model.planform.y if ys is None else ys)]

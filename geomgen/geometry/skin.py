@@ -50,9 +50,6 @@ class Skin:
         sv = BSpline(self.tv, np.moveaxis(sv, 1, 0), self.dv, axis=0).derivative()(v).transpose(1, 0, 2)
         return su, sv
 
-    @property
-    def u_range(self) -> tuple[float, float]:
-        return float(self.tu[0]), float(self.tu[-1])
 
     @property
     def v_range(self) -> tuple[float, float]:

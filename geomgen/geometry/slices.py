@@ -149,27 +149,6 @@ class SkinSlicer:
         return self._at(ci, vv).reshape(nu, len(s), 3).transpose(1, 0, 2)
 
 
-def slice_grid(grid: np.ndarray, axis: int, s: np.ndarray) -> np.ndarray:
-    """Ordered slices (len(s), nu, 3) of a sample grid at span positions ``s``.
-
-    Each chordwise column (fixed u) is a curve across the span; it must cross each plane
-    once (the span coordinate monotone along it), which holds for lofted skins.
-    """
-    g = grid[:, :, axis]  # (nu, nv)
-    if g[0, -1] < g[0, 0]:
-        grid, g = grid[:, ::-1], g[:, ::-1]
-    if (np.diff(g, axis=1) < -1e-9).any():
-        raise ValueError("the skin folds back along the span; it cannot be sliced column-wise")
-    s = np.atleast_1d(s)
-    j = np.stack([np.searchsorted(col, s, side="left") - 1 for col in g])  # (nu, ns)
-    j = np.clip(j, 0, g.shape[1] - 2)
-    iu = np.arange(g.shape[0])[:, None]
-    g0, g1 = g[iu, j], g[iu, j + 1]
-    t = np.clip((s[None, :] - g0) / np.where(g1 > g0, g1 - g0, 1.0), 0.0, 1.0)[..., None]
-    pts = (1 - t) * grid[iu, j] + t * grid[iu, j + 1]  # (nu, ns, 3)
-    return pts.transpose(1, 0, 2)
-
-
 def section_diameter(points: np.ndarray) -> tuple[float, int, int]:
     """(largest distance between two points of a section, index of one end, of the other).
 

@@ -116,10 +116,6 @@ class Lattice:
         """
         return self.A + self.t_mid[:, None] * (self.B - self.A)
 
-    def mask(self, index: int) -> np.ndarray:
-        """(N,) bool, panels of surface ``index``."""
-        return self.surface == index
-
 
 def _cosine(model, n_half: int, theta_shift: float = 0.0) -> np.ndarray:
     """(n + 1,) span coordinates y(θ), θ = (j + theta_shift)π/n, j = 0..n, mm."""

@@ -86,10 +86,6 @@ class Figure:
     caption: list
 
 
-def _roles(data) -> dict:
-    return {s["name"]: s["role"] for s in data["surfaces"]}
-
-
 def _main_figures(data) -> list:
     cols = [("span_mm", "span mm", ".1f"), ("projected_area_cm2", "area cm²", ".1f"), ("aspect_ratio", "AR", ".2f"),
             ("mac_mm", "MAC mm", ".1f"), ("mac_y_mm", "MAC ȳ mm", ".1f"), ("mac_le_x_mm", "MAC leading edge x mm", ".1f"),
