@@ -93,7 +93,11 @@ def measure_stl(path, frame: Frame | None = None) -> dict:
     fig = planform_figures(Outline(s, w, x_le, c), lo, hi, section_diameter(ends[0])[0],
                            section_diameter(ends[1])[0], root, tip,
                            xr + cr / 4, xt + ct / 4)
+    c_mass = np.asarray(mesh.center_mass, float)
+    # how far a chordal error can move the centroid: the mesh and the surface differ by a
+    # shell at most ``tol`` thick, so |Δc_k| <= tol · Σ A_i |x_ik − c_k| / V (per mm of tol)
+    lever = (mesh.area_faces[:, None] * np.abs(mesh.triangles_center - c_mass)).sum(axis=0) / abs(mesh.volume)
     fig.update(volume_cm3=float(mesh.volume) / 1000, wetted_area_cm2=float(mesh.area) / 100,
-               centroid_mm=tuple(float(v) for v in mesh.center_mass))
+               centroid_mm=tuple(float(v) for v in c_mass), centroid_lever=tuple(float(v) for v in lever))
     return {"figures": fig, "watertight": bool(mesh.is_watertight), "triangles": int(len(mesh.faces)),
             "area_mm2": float(mesh.area), "axis": axis}
