@@ -9,6 +9,7 @@ folder        what is in it
 ``print/``    meshes to print or view: STL and 3MF of surfaces, pieces and shims
 ``drawings/`` the shaper's 1:1 templates, offset tables and hot-wire profiles
 ``report/``   the design report, the check record and each command's summary
+``studies/``  what-if comparisons, size families and sweeps: tables, plots, specs
 ============  ====================================================================
 
 plus ``geomgen-manifest.json`` (what geomgen wrote, with hashes) and ``geomgen-index.md``
@@ -26,12 +27,13 @@ FOLDERS = {
     "print": "meshes to print or view (STL, 3MF, mm)",
     "drawings": "shaper's drawings (1:1 DXF/SVG templates, offset tables, hot-wire profiles)",
     "report": "design report, check record and command summaries",
+    "studies": "design studies: what-if comparisons, size families, sweeps (tables, plots, variant specs)",
 }
 
 #: file suffix -> folder, where the caller does not say
 _FOLDER_OF_SUFFIX = {".step": "cad", ".stl": "print", ".3mf": "print", ".dxf": "drawings", ".svg": "drawings",
                      ".csv": "drawings", ".html": "report", ".md": "report", ".json": "report", ".png": "report",
-                     ".txt": "report"}
+                     ".txt": "report", ".toml": "studies", ".parquet": "studies"}
 
 MANIFEST = "geomgen-manifest.json"
 INDEX = "geomgen-index.md"

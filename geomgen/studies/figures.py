@@ -1,0 +1,118 @@
+"""The figures of one variant: what a designer compares, from the vortex-lattice analysis.
+
+:func:`variant_figures` takes spec *text* (what a worker process or a remote worker gets) and
+returns plain numbers, so any executor gives the same row. A variant that cannot be made or
+balanced returns its error in the row instead of stopping the study.
+"""
+
+from __future__ import annotations
+
+import math
+
+#: figure key -> (heading, unit), in table order
+FIGURES = {
+    "wing_lift_n": ("front wing lift", "N"),
+    "stab_lift_n": ("stabilizer lift", "N"),
+    "stab_lift_pct_weight": ("stabilizer lift", "% weight"),
+    "attitude_deg": ("board attitude", "deg"),
+    "induced_drag_n": ("induced drag", "N"),
+    "drag_n": ("total drag", "N"),
+    "lift_to_drag": ("lift / drag", ""),
+    "neutral_point_x_mm": ("neutral point x", "mm"),
+    "neutral_point_from_mast_mm": ("neutral point from mast", "mm"),
+    "static_margin_pct": ("static margin", "% MAC"),
+    "cp_from_mast_mm": ("net centre of pressure from mast", "mm"),
+    "mast_move_mm": ("mast move to restore the base balance", "mm"),
+    "takeoff_kmh": ("takeoff speed", "km/h"),
+    "cavitation_kmh": ("cavitation onset", "km/h"),
+    "projected_area_cm2": ("front wing projected area", "cm²"),
+}
+
+
+#: planform figures given per surface, as ``<surface>:<figure>``
+SURFACE_FIGURES = ("projected_area_cm2", "span_mm", "aspect_ratio", "mac_mm", "volume_cm3")
+
+
+def cruise_speed(flight) -> float:
+    """The cruise speed a study compares at: the middle one of ``[flight]`` speeds (common
+    practice of this project: the speeds are listed from takeoff to top speed)."""
+    speeds = sorted(flight.speeds_kmh)
+    return float(speeds[len(speeds) // 2])
+
+
+def variant_figures(text: str, source: str = "<variant>", *, cruise_kmh: float | None = None,
+                    allow_outside_files: bool = False) -> dict:
+    """Figures of the spec in ``text`` trimmed at ``cruise_kmh`` (default :func:`cruise_speed`).
+
+    Returns a dict of :data:`FIGURES` keys (None where a figure does not apply) plus
+    ``cruise_kmh``; or ``{"error": message}`` when the variant cannot be made or balanced.
+    """
+    from ..errors import GeomgenError
+    from ..geometry import build_models
+    from ..geometry.figures import intended_figures
+    from ..hydro import analyse
+    from ..spec import load_spec_text
+
+    try:
+        spec = load_spec_text(text, source)
+        spec._allow_outside_files = allow_outside_files  # type: ignore[attr-defined]
+        if spec.flight is None:
+            return {"error": f"{source}: a study needs a [flight] table (mass and speeds)"}
+        v = cruise_kmh if cruise_kmh is not None else cruise_speed(spec.flight)
+        flight = spec.flight.model_copy(update={"speeds_kmh": sorted(set(spec.flight.speeds_kmh) | {float(v)})})
+        models = build_models(spec)
+        res = analyse(models, flight)
+    except GeomgenError as exc:
+        return {"error": "; ".join(getattr(exc, "problems", None) or [str(exc)])}
+    except (ValueError, ArithmeticError) as exc:  # a variant the numbers cannot carry
+        return {"error": f"{source}: {exc}"}
+    t = next((p for p in res.trim if abs(p.speed_kmh - v) < 1e-9), None)
+    roles = {s.name: s.role for s in res.surfaces}
+    out = {k: None for k in FIGURES}
+    out["cruise_kmh"] = float(v)
+    for m in models:  # each surface's planform, as the family table shows it
+        f = intended_figures(m)
+        for k in SURFACE_FIGURES:
+            out[f"{m.name}:{k}"] = getattr(f, k)
+        if m.role == "wing" and out["projected_area_cm2"] is None:
+            out["projected_area_cm2"] = f.projected_area_cm2
+    out.update(neutral_point_x_mm=res.neutral_point_x_mm, neutral_point_from_mast_mm=res.neutral_point_from_mast_mm,
+               static_margin_pct=res.static_margin_pct,
+               takeoff_kmh=res.takeoff.speed_kmh if res.takeoff is not None else None)
+    cav = getattr(res, "cavitation", None)  # present when the analysis predicts cavitation onset
+    if cav is not None:
+        out["cavitation_kmh"] = _first(cav, "onset_kmh", "speed_kmh")
+    if t is None:
+        return out
+    weight = sum(t.lift_n.values())
+    out["wing_lift_n"] = sum(v for k, v in t.lift_n.items() if roles.get(k) == "wing")
+    stab = [v for k, v in t.lift_n.items() if roles.get(k) == "stabilizer"]
+    out["stab_lift_n"] = sum(stab) if stab else None
+    out["stab_lift_pct_weight"] = 100.0 * sum(stab) / weight if stab and weight else None
+    out["attitude_deg"] = t.attitude_deg
+    out["induced_drag_n"] = t.induced_drag_n
+    total = _first(t, "total_drag_n", "drag_n")
+    out["drag_n"] = total
+    drag = total if total is not None else t.induced_drag_n
+    out["lift_to_drag"] = weight / drag if drag and drag > 0 else None
+    out["cp_from_mast_mm"] = t.cp_from_mast_mm if t.cp_from_mast_mm is not None else t.cp_x_mm
+    return {k: (None if isinstance(x, float) and not math.isfinite(x) else x) for k, x in out.items()}
+
+
+def _first(obj, *names):
+    for n in names:
+        v = obj.get(n) if isinstance(obj, dict) else getattr(obj, n, None)
+        if v is not None:
+            return float(v)
+    return None
+
+
+def with_mast_moves(rows: list[dict], base: dict) -> list[dict]:
+    """Fill ``mast_move_mm``: how far the mast must move in its tracks, aft +, so that the net
+    centre of pressure sits where it sat under the rider in ``base``. Its place on the board is
+    (mast place) + (cp from mast); keeping it means moving the mast by base − variant."""
+    b = base.get("cp_from_mast_mm")
+    for r in rows:
+        c = r.get("cp_from_mast_mm")
+        r["mast_move_mm"] = (b - c) if c is not None and b is not None else None
+    return rows

@@ -1,0 +1,116 @@
+"""Running a study's variants: in this process, on a local process pool, or on a Dask
+distributed cluster the user points to. Workers get spec text and return plain numbers
+(kernel shapes never cross a process boundary), and BLAS runs single-threaded in every
+executor, so the table is the same bytes whichever ran it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Callable
+
+from .figures import variant_figures
+
+
+@dataclass
+class Task:
+    """One variant to evaluate: its spec text and where its relative files resolve from."""
+
+    text: str
+    source: str
+    cruise_kmh: float | None = None
+    allow_outside_files: bool = False
+    build_dir: str | None = None  # if given, build and check the variant into this folder too
+
+
+def evaluate(task: Task) -> dict:
+    """Figures of one task (the function every executor runs)."""
+    from threadpoolctl import threadpool_limits
+
+    # load every numerical library first: a limit set before a BLAS is loaded misses it
+    import scipy.linalg  # noqa: F401
+    import scipy.interpolate  # noqa: F401
+
+    from .. import geometry, hydro  # noqa: F401
+
+    with threadpool_limits(limits=1):
+        row = variant_figures(task.text, task.source, cruise_kmh=task.cruise_kmh,
+                              allow_outside_files=task.allow_outside_files)
+    if task.build_dir is not None and "error" not in row:
+        row.update(_build_and_check(task))
+    return row
+
+
+def _build_and_check(task: Task) -> dict:
+    """Build and check one variant from its text (written beside its output folder)."""
+    from pathlib import Path
+
+    from ..check.run import check
+    from ..errors import GeomgenError
+    from ..project import Project
+
+    out = Path(task.build_dir)
+    out.mkdir(parents=True, exist_ok=True)
+    spec = out / "variant.toml"
+    spec.write_text(task.text)
+    try:
+        res = check(Project(spec, out / "files", allow_outside_files=True))
+    except GeomgenError as exc:
+        return {"check": "error", "check_error": str(exc)}
+    figs = {r.figure: r.measured for r in res.records if r.part == res.records[0].part} if res.records else {}
+    return {"check": "ok" if res.ok else "FAULT", "measured_volume_cm3": figs.get("volume_cm3")}
+
+
+@dataclass
+class Executor:
+    """Where the tasks run: ``jobs`` local processes, or a Dask scheduler ``address``."""
+
+    jobs: int = 1
+    address: str | None = None
+    progress: Callable[[int, int], None] | None = field(default=None, repr=False)
+
+    def map(self, tasks: list[Task]) -> list[dict]:
+        say = self.progress or (lambda done, total: None)
+        n = len(tasks)
+        say(0, n)
+        if self.address:
+            return self._dask(tasks, say)
+        if self.jobs <= 1 or n <= 1:
+            rows = []
+            for i, t in enumerate(tasks):
+                rows.append(evaluate(t))
+                say(i + 1, n)
+            return rows
+        import multiprocessing
+        from concurrent.futures import ProcessPoolExecutor, as_completed
+
+        rows: list = [None] * n
+        # spawn: fresh interpreters, nothing inherited from this process (threads, kernel)
+        with ProcessPoolExecutor(max_workers=self.jobs, mp_context=multiprocessing.get_context("spawn")) as pool:
+            futures = {pool.submit(evaluate, t): i for i, t in enumerate(tasks)}
+            for done, fut in enumerate(as_completed(futures), 1):
+                rows[futures[fut]] = fut.result()
+                say(done, n)
+        return rows
+
+    def _dask(self, tasks: list[Task], say) -> list[dict]:
+        from ..errors import SpecError
+
+        try:
+            from distributed import Client, as_completed
+        except ImportError:
+            raise SpecError(["--scheduler needs the 'distributed' package (pip install 'dask[distributed]')"]) from None
+        try:
+            client = Client(self.address, timeout=10)
+        except (OSError, TimeoutError) as exc:
+            raise SpecError([f"--scheduler {self.address}: cannot reach the scheduler ({exc})"]) from None
+        try:
+            futures = client.map(evaluate, tasks, pure=False)
+            index = {f.key: i for i, f in enumerate(futures)}
+            rows: list = [None] * len(tasks)
+            for done, fut in enumerate(as_completed(futures), 1):
+                rows[index[fut.key]] = fut.result()
+                say(done, len(tasks))
+            return rows
+        finally:
+            client.close()

@@ -1,0 +1,166 @@
+"""The three studies: compare (what if, side by side), size family, sweep; and their tables.
+
+Every study starts from a project's spec *data*, makes variants as spec text
+(:mod:`geomgen.studies.changes`), runs them through an :class:`~geomgen.studies.run.Executor`
+and returns a :class:`Table` (rows of input values and figures). Nothing here writes files;
+:func:`study_outputs` turns a table into the outputs of the set (CSV, JSON, text, Parquet
+where pyarrow is installed, PNG plots).
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from ..errors import SpecError
+from .changes import Change, apply, get_value
+from .figures import FIGURES, with_mast_moves
+from .run import Executor, Task
+
+
+@dataclass
+class Table:
+    """A study's result: ``inputs`` (the varied values' names), ``rows`` (dicts), a title."""
+
+    kind: str
+    title: str
+    inputs: list[str]
+    rows: list[dict]
+    labels: list[str] = field(default_factory=list)  # one per row
+    notes: list[str] = field(default_factory=list)
+
+    @property
+    def columns(self) -> list[str]:
+        keys = list(self.inputs) + [k for k in FIGURES] + ["cruise_kmh"]
+        extra = sorted({k for r in self.rows for k in r} - set(keys) - {"error", "label"})
+        return ["label"] + keys + extra + ["error"]
+
+
+def _base(project) -> tuple[dict, str]:
+    text = project.spec_path.read_text(encoding="utf-8-sig")
+    return tomllib.loads(text), text
+
+
+def _task(project, data: dict, cruise_kmh, build_dir=None) -> Task:
+    import tomli_w
+
+    return Task(tomli_w.dumps(data), str(project.spec_path), cruise_kmh, project.allow_outside_files,
+                str(build_dir) if build_dir is not None else None)
+
+
+def _run(project, datas: list[dict], executor: Executor, cruise_kmh, build_dirs=None) -> list[dict]:
+    tasks = [_task(project, d, cruise_kmh, (build_dirs or [None] * len(datas))[i]) for i, d in enumerate(datas)]
+    return executor.map(tasks)
+
+
+def compare(project, change_sets: list[list[Change]], others=(), *, executor: Executor | None = None,
+            cruise_kmh: float | None = None) -> Table:
+    """The base spec, each set of changes applied to it, and other spec files, side by side.
+    ``mast_move_mm`` of each column is the move that restores the base's balance point."""
+    data, _ = _base(project)
+    datas, labels = [data], ["base"]
+    for cs in change_sets:
+        datas.append(apply(data, cs))
+        labels.append(" + ".join(c.label for c in cs))
+    for other in others:
+        datas.append(tomllib.loads(Path(other).read_text(encoding="utf-8-sig")))
+        labels.append(Path(other).name)
+    rows = _run(project, datas, executor or Executor(), cruise_kmh)
+    for r, lab in zip(rows, labels):
+        r["label"] = lab
+    with_mast_moves(rows, rows[0])
+    return Table("compare", f"what if: {project.spec_path.name}", [], rows, labels)
+
+
+def family(project, surface: str, areas_cm2: list[float], keep: str = "aspect", *,
+           executor: Executor | None = None, cruise_kmh: float | None = None, build_root=None) -> tuple[Table, dict]:
+    """One spec per target projected area of ``surface`` (scaled by ``keep``: aspect ratio, span
+    or chord). Returns the table and {member name: spec text}. A member's ``expect`` and
+    ``check_at`` tables are dropped (they were the base's calculation sheet)."""
+    import tomli_w
+
+    from ..geometry.figures import intended_figures
+
+    data, _ = _base(project)
+    model = next((m for m in project.models if m.name == surface), None)
+    if model is None:
+        raise SpecError([f"{project.source}: no surface named '{surface}' "
+                         f"(the spec has: {', '.join(m.name for m in project.models)})"])
+    a0 = intended_figures(model).projected_area_cm2
+    datas, labels, texts, builds = [], [], {}, []
+    for a in areas_cm2:
+        if not (math.isfinite(a) and a > 0):
+            raise SpecError([f"family: area {a!r} cm² must be a positive number"])
+        d = apply(data, [Change("area", surface, a / a0, keep)])
+        member = f"{project.name}-{surface}-{a:g}cm2"
+        d["name"] = member
+        for s in d.get("surface", []):
+            if s.get("name") == surface:
+                s.pop("expect", None)
+                s.pop("check_at", None)
+        datas.append(d)
+        labels.append(f"{surface} {a:g} cm²")
+        texts[member] = tomli_w.dumps(d)
+        builds.append(Path(build_root) / member if build_root is not None else None)
+    rows = _run(project, datas, executor or Executor(), cruise_kmh, builds)
+    for r, lab, a in zip(rows, labels, areas_cm2):
+        r["label"], r["target_area_cm2"] = lab, a
+    t = Table("family", f"size family of {surface} ({project.spec_path.name}, keep {keep})", ["target_area_cm2"],
+              rows, labels, [f"scaled from {a0:.1f} cm² keeping its {keep}"])
+    return t, texts
+
+
+def parse_values(text: str) -> list[float]:
+    """``a,b,c`` or ``start:stop:step`` (stop included when the steps land on it)."""
+    try:
+        if ":" in text:
+            a, b, st = (float(x) for x in text.split(":"))
+            if st == 0 or (b - a) / st < 0:
+                raise ValueError("the step must go from start toward stop")
+            n = int(math.floor((b - a) / st + 1e-9)) + 1
+            if n > 100_000:
+                raise ValueError(f"{n} values; at most 100000")
+            return [round(a + i * st, 12) for i in range(n)]
+        vals = [float(x) for x in text.split(",") if x.strip()]
+        if not vals:
+            raise ValueError("no values")
+        if not all(math.isfinite(v) for v in vals):
+            raise ValueError("values must be finite")
+        return vals
+    except ValueError as exc:
+        raise SpecError([f"values '{text}': {exc}"]) from None
+
+
+def sweep(project, axes: dict[str, list[float]], *, grid: bool = False, executor: Executor | None = None,
+          cruise_kmh: float | None = None, build_root=None, limit: int = 20_000) -> Table:
+    """Vary spec values (``path -> values``): one at a time about the base, or every
+    combination (``grid``). Each row holds the input values and the figures."""
+    data, _ = _base(project)
+    for path in axes:
+        get_value(data, path)  # every path names a value of this spec (SpecError otherwise)
+    combos: list[dict] = []
+    if grid:
+        n = math.prod(len(v) for v in axes.values())
+        if n > limit:
+            raise SpecError([f"sweep grid of {n} variants; at most {limit} (a limit no design needs)"])
+        combos = [dict(zip(axes, vals)) for vals in itertools.product(*axes.values())]
+    else:
+        base_vals = {p: get_value(data, p) for p in axes}
+        for p, vals in axes.items():
+            combos += [{**base_vals, p: v} for v in vals]
+        if len(combos) > limit:
+            raise SpecError([f"sweep of {len(combos)} variants; at most {limit}"])
+    datas = [apply(data, [Change("set", p, v) for p, v in c.items()]) for c in combos]
+    builds = [Path(build_root) / f"variant-{i + 1:05d}" for i in range(len(datas))] if build_root else None
+    rows = _run(project, datas, executor or Executor(), cruise_kmh, builds)
+    for i, (r, c) in enumerate(zip(rows, combos)):
+        r.update(c)
+        r["label"] = f"variant {i + 1}"
+    base_row = next((r for r in rows if all(r[p] == get_value(data, p) for p in axes) and "error" not in r), None)
+    if base_row is not None:
+        with_mast_moves(rows, base_row)
+    return Table("sweep", f"sweep of {', '.join(axes)} ({'grid' if grid else 'one at a time'})", list(axes), rows,
+                 [r["label"] for r in rows])
