@@ -89,7 +89,7 @@ def build(project, out_dir=None, *, formats=("step", "stl"), stl_tol: float | No
     result.seconds = time.perf_counter() - t0
     outputs.append(Output(summary_name, "text", lambda: format_build_summary(result, for_file=True),
                           "what the build wrote and the intended figures per surface"))
-    done = write_set(project.out_dir, outputs, project.output_info("build", **freshness_info(project)), say)
+    done = write_set(project.out_dir, outputs, project.output_info("build", **freshness_info(project)), say, overwrite_edited=project.overwrite_edited)
     result.files = done.files  # the summary too
     result.notes += done.notes()
     result.seconds = time.perf_counter() - t0

@@ -82,6 +82,11 @@ def outside_option(f):
                         help="let the spec read coordinate files outside its own folder")(f)
 
 
+def overwrite_option(f):
+    return click.option("--overwrite-edited", "overwrite_edited", is_flag=True, default=False,
+                        help="replace outputs edited since geomgen wrote them (else refused)")(f)
+
+
 def stl_tol_option(f):
     return click.option("--stl-tol", type=click.FloatRange(min=0.001, max=5.0), default=None,
                         help="STL chordal deviation from the B-spline surface, mm [default 0.05]")(f)
@@ -94,22 +99,26 @@ def _project(spec, out_dir=None, allow_outside_files=False, stl_tol=None):
 
     root = click.get_current_context().find_root().obj or {}
     return Project(spec, out_dir, allow_outside_files=bool(allow_outside_files or root.get("allow_outside_files")),
-                   stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM)
+                   stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM,
+                   overwrite_edited=bool(root.get("overwrite_edited")))
 
 
 @click.group(cls=Commands, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="geomgen")
 @outside_option
+@overwrite_option
 @click.pass_context
-def main(ctx, allow_outside_files):
+def main(ctx, allow_outside_files, overwrite_edited):
     """geomgen: a lifting-surface spec (TOML) to STEP solids and STL meshes, measured back.
 
     Frame: x aft, y starboard, z up; mm and degrees. Outputs go to one folder per spec
     (default out/<spec name>): cad/, print/, drawings/, report/, with geomgen-index.md listing
     every file. Exit codes: 0 ok, 1 a check failed, 2 the spec or the command line is wrong,
     3 geometry could not be made or a file could not be written, 130 interrupted.
+    One run writes into a folder at a time; outputs edited since geomgen wrote them are
+    refused unless --overwrite-edited is given (before the command).
     """
-    ctx.obj = {"allow_outside_files": allow_outside_files}
+    ctx.obj = {"allow_outside_files": allow_outside_files, "overwrite_edited": overwrite_edited}
 
 
 @main.command()
@@ -184,7 +193,7 @@ def balance(spec, out_dir, cg_x, sideslip, as_json, allow_outside_files):
             Output(output_name(project.name, "balance", suffix=".txt"), "text", text,
                    "what the balance command printed: neutral point, lift split, trim"),
             Output(output_name(project.name, "balance", suffix=".json"), "json", res.as_dict(),
-                   "the balance as JSON")], project.output_info("balance"))
+                   "the balance as JSON")], project.output_info("balance"), overwrite_edited=project.overwrite_edited)
         for n in done.notes():
             click.echo(f"note: {n}", err=True)
 

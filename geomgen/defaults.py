@@ -79,3 +79,8 @@ SHOP_VOLUME_BALANCE_REL = 1e-3
 #: shorter than min(this, 5 % of the chordal tolerance) are collapsed (single-precision STL).
 MESH_MERGE_TOL_MM = 1e-5
 MESH_SHORT_EDGE_MM = 1e-3
+
+#: Seconds a command waits for another geomgen run to finish writing the same output folder
+#: before it refuses, naming that run's process (a build takes longer than anyone would wait
+#: without a word; two runs into one folder are a mistake to report, not to queue).
+LOCK_WAIT_S = 5.0

@@ -141,7 +141,7 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
                          "check record: every figure intended / measured in STEP and STL, verdicts"),
                   Output(output_name(project.name, "check", suffix=".json"), "json", res.as_dict(),
                          "the check record as JSON")]
-        done = write_set(out, record, project.output_info("check"))
+        done = write_set(out, record, project.output_info("check"), overwrite_edited=project.overwrite_edited)
         res.record_files = done.files
         res.notes += done.notes()
     return res

@@ -120,7 +120,7 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
     res.seconds = time.perf_counter() - t0
     outputs.append(Output(output_name(set_name, "drawings", suffix=".txt"), "text",
                           lambda: format_shop_summary(res, for_file=True), "what the drawings command wrote, per surface"))
-    done = write_set(project.out_dir, outputs, project.output_info("drawings"), say)
+    done = write_set(project.out_dir, outputs, project.output_info("drawings"), say, overwrite_edited=project.overwrite_edited)
     res[:] = done.files  # the summary file too
     res.notes = done.notes()
     res.seconds = time.perf_counter() - t0

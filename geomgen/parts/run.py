@@ -97,7 +97,7 @@ def write_shop_parts(project, out_dir=None, *, progress: Callable[[str], None] |
                        "every shop part: sizes, volumes, poses (datum to file matrices), checks"),
                 Output(output_name(project.name, "parts", suffix=".txt"), "text", lambda: format_parts_summary(res, for_file=True),
                        "what the parts command wrote, per surface")]
-    done = write_set(project.out_dir, outputs, project.output_info("parts"), say)
+    done = write_set(project.out_dir, outputs, project.output_info("parts"), say, overwrite_edited=project.overwrite_edited)
     res[:] = done.files  # the report and the summary too
     res.notes = done.notes()
     res.seconds = time.perf_counter() - t0

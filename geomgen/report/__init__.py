@@ -93,5 +93,5 @@ def write_report(project, out_dir=None, *, progress=None, allow_outside_files: b
                ".json": "every number of the report, with the paths the pages cite",
                ".png": "a drawing of the Markdown report"}
     outs = [Output(n, "bytes", files[n], purpose[Path(n).suffix]) for n in order]
-    done = write_set(project.out_dir, outs, project.output_info("report"))
+    done = write_set(project.out_dir, outs, project.output_info("report"), overwrite_edited=project.overwrite_edited)
     return ReportFiles(done.files, bool(data["check"]["ok"]), done.notes())
