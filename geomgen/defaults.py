@@ -84,3 +84,10 @@ MESH_SHORT_EDGE_MM = 1e-3
 #: before it refuses, naming that run's process (a build takes longer than anyone would wait
 #: without a word; two runs into one folder are a mistake to report, not to queue).
 LOCK_WAIT_S = 5.0
+
+#: Largest spec file read, bytes. A real spec with every table is a few kB; the cap counts
+#: the bytes actually read (a device reports no size), so a wrong path cannot eat memory.
+MAX_SPEC_BYTES = 1_000_000
+
+#: Deepest nesting of tables and arrays in a spec (the schema needs about 5 levels).
+MAX_SPEC_DEPTH = 12
