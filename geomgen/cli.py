@@ -26,8 +26,12 @@ KIND = {SpecError: "spec error", GeometryError: "geometry error", ExportError: "
 def _fail(exc: GeomgenError):
     lines = exc.problems if isinstance(exc, SpecError) else [str(exc)]
     kind = next((w for cls, w in KIND.items() if isinstance(exc, cls)), "error")
-    for line in lines:
+    from .defaults import MAX_ERROR_LINES
+
+    for line in lines[:MAX_ERROR_LINES]:
         click.echo(f"{kind}: {line}", err=True)
+    if len(lines) > MAX_ERROR_LINES:
+        click.echo(f"{kind}: … and {len(lines) - MAX_ERROR_LINES} more not shown", err=True)
     if isinstance(exc, SpecError) and len(lines) > 1:
         click.echo(f"{len(lines)} problems; nothing was written.", err=True)
     sys.exit(exc.exit_code)

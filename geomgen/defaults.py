@@ -91,3 +91,7 @@ MAX_SPEC_BYTES = 1_000_000
 
 #: Deepest nesting of tables and arrays in a spec (the schema needs about 5 levels).
 MAX_SPEC_DEPTH = 12
+
+#: Error lines printed for one refusal; the rest are counted (2 million unknown keys once
+#: printed 2 million lines). Fixing the first few usually fixes many of the rest.
+MAX_ERROR_LINES = 50

@@ -72,3 +72,12 @@ def test_non_finite_numbers_are_refused_naming_the_field(tmp_path, bad):
     p.write_text(text.replace("chord = ", f"chord = {bad} #", 1))
     r = run("balance", p)
     assert r.exit_code == 2 and "chord" in r.output and "finite" in r.output.lower()
+
+
+def test_error_lines_are_capped_with_a_count_of_the_rest(tmp_path):
+    p = tmp_path / "s.toml"
+    p.write_text("\n".join(f"junk{i} = 1" for i in range(500)) + "\n" + wing_spec())
+    r = run("balance", p)
+    lines = [l for l in r.output.splitlines() if l.startswith("spec error:")]
+    assert r.exit_code == 2 and len(lines) == 51 and "more not shown" in lines[-1]
+    assert "500 problems" in r.output or "problems" in r.output
