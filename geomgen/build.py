@@ -10,7 +10,7 @@ from typing import Callable
 
 from . import CAUTION, __version__
 from .geometry.figures import Figures, intended_figures
-from .outputs import Output, output_name, write_set
+from .outputs import Output, output_name
 from .project import Project
 
 #: format -> (file suffix, what the index says the file is for)
@@ -89,7 +89,7 @@ def build(project, out_dir=None, *, formats=("step", "stl"), stl_tol: float | No
     result.seconds = time.perf_counter() - t0
     outputs.append(Output(summary_name, "text", lambda: format_build_summary(result, for_file=True),
                           "what the build wrote and the intended figures per surface"))
-    done = write_set(project.out_dir, outputs, project.output_info("build", **freshness_info(project)), say)
+    done = project.write("build", outputs, say, **freshness_info(project))
     result.files = done.files  # the summary too
     result.notes += done.notes()
     result.seconds = time.perf_counter() - t0

@@ -26,8 +26,12 @@ KIND = {SpecError: "spec error", GeometryError: "geometry error", ExportError: "
 def _fail(exc: GeomgenError):
     lines = exc.problems if isinstance(exc, SpecError) else [str(exc)]
     kind = next((w for cls, w in KIND.items() if isinstance(exc, cls)), "error")
-    for line in lines:
+    from .defaults import MAX_ERROR_LINES
+
+    for line in lines[:MAX_ERROR_LINES]:
         click.echo(f"{kind}: {line}", err=True)
+    if len(lines) > MAX_ERROR_LINES:
+        click.echo(f"{kind}: … and {len(lines) - MAX_ERROR_LINES} more not shown", err=True)
     if isinstance(exc, SpecError) and len(lines) > 1:
         click.echo(f"{len(lines)} problems; nothing was written.", err=True)
     sys.exit(exc.exit_code)
@@ -82,6 +86,11 @@ def outside_option(f):
                         help="let the spec read coordinate files outside its own folder")(f)
 
 
+def overwrite_option(f):
+    return click.option("--overwrite-edited", "overwrite_edited", is_flag=True, default=False,
+                        help="replace outputs edited since geomgen wrote them (else refused)")(f)
+
+
 def stl_tol_option(f):
     return click.option("--stl-tol", type=click.FloatRange(min=0.001, max=5.0), default=None,
                         help="STL chordal deviation from the B-spline surface, mm [default 0.05]")(f)
@@ -94,22 +103,26 @@ def _project(spec, out_dir=None, allow_outside_files=False, stl_tol=None):
 
     root = click.get_current_context().find_root().obj or {}
     return Project(spec, out_dir, allow_outside_files=bool(allow_outside_files or root.get("allow_outside_files")),
-                   stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM)
+                   stl_tol=stl_tol or defaults.STL_LINEAR_TOL_MM,
+                   overwrite_edited=bool(root.get("overwrite_edited")))
 
 
 @click.group(cls=Commands, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="geomgen")
 @outside_option
+@overwrite_option
 @click.pass_context
-def main(ctx, allow_outside_files):
+def main(ctx, allow_outside_files, overwrite_edited):
     """geomgen: a lifting-surface spec (TOML) to STEP solids and STL meshes, measured back.
 
     Frame: x aft, y starboard, z up; mm and degrees. Outputs go to one folder per spec
     (default out/<spec name>): cad/, print/, drawings/, report/, with geomgen-index.md listing
     every file. Exit codes: 0 ok, 1 a check failed, 2 the spec or the command line is wrong,
     3 geometry could not be made or a file could not be written, 130 interrupted.
+    One run writes into a folder at a time; outputs edited since geomgen wrote them are
+    refused unless --overwrite-edited is given (before the command).
     """
-    ctx.obj = {"allow_outside_files": allow_outside_files}
+    ctx.obj = {"allow_outside_files": allow_outside_files, "overwrite_edited": overwrite_edited}
 
 
 @main.command()
@@ -178,13 +191,13 @@ def balance(spec, out_dir, cg_x, sideslip, as_json, allow_outside_files):
     text = format_hydro(res)
     click.echo(json.dumps(res.as_dict(), indent=2) if as_json else text)
     if out_dir is not None:
-        from .outputs import Output, output_name, write_set
+        from .outputs import Output, output_name
 
-        done = write_set(project.out_dir, [
+        done = project.write("balance", [
             Output(output_name(project.name, "balance", suffix=".txt"), "text", text,
                    "what the balance command printed: neutral point, lift split, trim"),
             Output(output_name(project.name, "balance", suffix=".json"), "json", res.as_dict(),
-                   "the balance as JSON")], project.output_info("balance"))
+                   "the balance as JSON")])
         for n in done.notes():
             click.echo(f"note: {n}", err=True)
 
@@ -274,11 +287,10 @@ class _Bar:
 def _study_done(project, table, out_dir, as_json, pairs=(), specs=None):
     import json
 
-    from .outputs import write_set
     from .studies import study_outputs, to_json, to_text
 
     click.echo(json.dumps(to_json(table), indent=1) if as_json else to_text(table))
-    done = write_set(project.out_dir, study_outputs(project, table, pairs, specs), project.output_info(table.kind))
+    done = project.write(table.kind, study_outputs(project, table, pairs, specs))
     click.echo(f"written: {', '.join(str(p) for p in done.files)}", err=True)
 
 

@@ -79,3 +79,19 @@ SHOP_VOLUME_BALANCE_REL = 1e-3
 #: shorter than min(this, 5 % of the chordal tolerance) are collapsed (single-precision STL).
 MESH_MERGE_TOL_MM = 1e-5
 MESH_SHORT_EDGE_MM = 1e-3
+
+#: Seconds a command waits for another geomgen run to finish writing the same output folder
+#: before it refuses, naming that run's process (a build takes longer than anyone would wait
+#: without a word; two runs into one folder are a mistake to report, not to queue).
+LOCK_WAIT_S = 5.0
+
+#: Largest spec file read, bytes. A real spec with every table is a few kB; the cap counts
+#: the bytes actually read (a device reports no size), so a wrong path cannot eat memory.
+MAX_SPEC_BYTES = 1_000_000
+
+#: Deepest nesting of tables and arrays in a spec (the schema needs about 5 levels).
+MAX_SPEC_DEPTH = 12
+
+#: Error lines printed for one refusal; the rest are counted (2 million unknown keys once
+#: printed 2 million lines). Fixing the first few usually fixes many of the rest.
+MAX_ERROR_LINES = 50

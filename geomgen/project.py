@@ -35,6 +35,7 @@ class Project:
     out_dir : output folder; default :func:`default_out_dir`
     allow_outside_files : let the spec read coordinate files outside its own folder
     stl_tol : STL chordal deviation from the B-spline skin, mm
+    overwrite_edited : replace outputs edited since geomgen wrote them (else refused)
 
     Raises
     ------
@@ -43,7 +44,7 @@ class Project:
     """
 
     def __init__(self, spec_path, out_dir=None, *, allow_outside_files: bool = False,
-                 stl_tol: float = defaults.STL_LINEAR_TOL_MM):
+                 stl_tol: float = defaults.STL_LINEAR_TOL_MM, overwrite_edited: bool = False):
         from .spec import load_spec
 
         self.spec_path = Path(spec_path)
@@ -52,6 +53,7 @@ class Project:
         self.out_dir = Path(out_dir) if out_dir is not None else default_out_dir(spec_path)
         self.allow_outside_files = allow_outside_files
         self.stl_tol = float(stl_tol)
+        self.overwrite_edited = bool(overwrite_edited)  # replace outputs edited since geomgen wrote them
         self._memo: dict[Any, Any] = {}
 
     @classmethod
@@ -93,3 +95,11 @@ class Project:
         """What the manifest records with each file a command writes."""
         return {"set": self.name, "spec": self.spec_path.name, "spec_sha256": self.spec_sha256,
                 "command": command, **extra}
+
+    def write(self, command: str, outputs: list, say=None, **extra):
+        """Write ``outputs`` of ``command`` into the output set, whole or not at all, with this
+        project's options (see :func:`geomgen.outputs.write_set`)."""
+        from .outputs import write_set
+
+        return write_set(self.out_dir, outputs, self.output_info(command, **extra), say,
+                         overwrite_edited=self.overwrite_edited)

@@ -187,7 +187,8 @@ def _cut_steps(shape, v0, tools, what, probes, each: bool):
                                         "nothing was written")
                 rem = sum(volume_mm3(x) for x in solids(_run(BRepAlgoAPI_Common(), [cur], [tool], f"{what}: {label}")))
                 v_res = volume_mm3(res) if each else None
-                if each and abs(v_cur - v_res - rem) > tol(v_cur, rem):
+                if each and abs(v_cur - v_res - rem) > (defaults.BOOLEAN_VOLUME_REL * v_cur
+                                                        + defaults.BOOLEAN_REMOVED_REL * rem):
                     raise GeometryError(f"{what}: {label}: the cut part and the removed material ({rem:.1f} mm³) do "
                                         f"not add up ({v_cur - v_res:.1f} mm³ left the part); nothing was written")
                 break

@@ -10,7 +10,7 @@ from .. import CAUTION, __version__
 from ..errors import CheckFailed, ExportError
 from ..geometry.figures import intended_figures
 from ..geometry.slices import Frame
-from ..outputs import Output, output_name, output_state, stale_outputs, write_set
+from ..outputs import Output, output_name, output_state, stale_outputs
 from ..project import Project
 from .compare import Record, compare_part, station_records
 
@@ -141,7 +141,7 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
                          "check record: every figure intended / measured in STEP and STL, verdicts"),
                   Output(output_name(project.name, "check", suffix=".json"), "json", res.as_dict(),
                          "the check record as JSON")]
-        done = write_set(out, record, project.output_info("check"))
+        done = project.write("check", record)
         res.record_files = done.files
         res.notes += done.notes()
     return res

@@ -69,7 +69,7 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
     (exit 3) for geometry that cannot be made (e.g. a kerf offset that folds), ExportError
     (exit 3) when a file cannot be written. Nothing is written unless everything is.
     """
-    from ..outputs import Output, output_name, write_set
+    from ..outputs import Output, output_name
     from ..project import Project
 
     project = Project.of(project, out_dir, allow_outside_files=allow_outside_files)
@@ -120,7 +120,7 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
     res.seconds = time.perf_counter() - t0
     outputs.append(Output(output_name(set_name, "drawings", suffix=".txt"), "text",
                           lambda: format_shop_summary(res, for_file=True), "what the drawings command wrote, per surface"))
-    done = write_set(project.out_dir, outputs, project.output_info("drawings"), say)
+    done = project.write("drawings", outputs, say)
     res[:] = done.files  # the summary file too
     res.notes = done.notes()
     res.seconds = time.perf_counter() - t0

@@ -58,7 +58,7 @@ def _segments_cross(p: np.ndarray) -> bool:
     """True if the closed 2D polygon ``p`` (n, 2) crosses itself (non-adjacent edges meet)."""
     a, b = p, np.roll(p, -1, axis=0)
     n = len(p)
-    d = b - a
+
     # orientation tests for every edge pair at once (n is a few hundred)
     def orient(p0, p1, q):
         return np.sign((p1[:, None, 0] - p0[:, None, 0]) * (q[None, :, 1] - p0[:, None, 1])

@@ -1,9 +1,11 @@
 """Whole-or-nothing output of one command's files into an output set.
 
-A command writes into a hidden staging folder inside the output folder (same filesystem,
-so the final moves are atomic renames). Only when every writer succeeded are the files
-moved into place, each with ``os.replace``; a failure before that removes the staging
-folder and leaves the previous outputs byte-identical.
+A command takes the folder's write lock (:mod:`.lock`), finishes or undoes what an
+interrupted run left (:func:`.journal.recover`), writes into a hidden staging folder inside
+the output folder, and only when every writer succeeded commits: the files are moved into
+place and the new manifest switched in with one atomic rename (:mod:`.journal`). A failure or
+Ctrl-C before the switch puts every previous output back; a kill at any instant leaves
+either the previous set or the new one, whole, once the next run has recovered.
 
 The manifest (``geomgen-manifest.json``) records, for every file geomgen wrote: name, size,
 SHA-256, geomgen version, spec file, spec hash, output set and the command that made it.
@@ -11,7 +13,9 @@ When a command commits, files of the same set made from another spec (or another
 version) are *stale*: they no longer describe the spec, so they are removed (they are
 geomgen's own and byte-identical to what it wrote) and the caller is told. A stale file
 edited since geomgen wrote it is not geomgen's any more: it is left, and reported.
-A file the manifest does not list is never overwritten or deleted.
+Refused, with nothing written: a file the manifest does not list, a manifest or index
+geomgen did not write, a link or a linked folder where an output goes, and an output edited
+since geomgen wrote it (unless ``overwrite_edited``).
 """
 
 from __future__ import annotations
@@ -24,21 +28,25 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..errors import ExportError
+from . import journal
 from .formats import Output
+from .lock import FolderLock
 from .manifest import entry_is_current, file_matches, read_manifest, sha256_of
 from .naming import FOLDERS, INDEX, MANIFEST, folder_of
 
 
 @dataclass
 class Committed:
-    """What a commit did: ``files`` written (final paths), stale files removed or left."""
+    """What a commit did: ``files`` written (final paths), stale files removed or left,
+    and what was found and mended first (``recovered``: interrupted runs, a dead lock owner)."""
 
     files: list[Path]
     removed_stale: list[str] = field(default_factory=list)
     kept_stale: list[str] = field(default_factory=list)  # stale but edited since written: left alone
+    recovered: list[str] = field(default_factory=list)
 
     def notes(self) -> list[str]:
-        out = []
+        out = list(self.recovered)
         if self.removed_stale:
             out.append(f"removed {len(self.removed_stale)} file(s) made from an earlier version of the spec "
                        f"(run their command again to remake them): " + ", ".join(self.removed_stale))
@@ -48,21 +56,61 @@ class Committed:
         return out
 
 
-class Staging:
-    """Context manager: ``path(name)`` gives a staging path; ``commit(info)`` moves all into place."""
+def _own_manifest(out_dir: Path) -> dict:
+    """The previous manifest, refusing one geomgen did not write (nothing is replaced)."""
+    path = out_dir / MANIFEST
+    if os.path.lexists(path):
+        foreign = path.is_symlink() or not path.is_file()
+        if not foreign:
+            try:
+                data = json.loads(path.read_text(encoding="utf-8"))
+                foreign = not (isinstance(data, dict) and data.get("written_by") == "geomgen")
+            except (OSError, ValueError):
+                foreign = True
+        if foreign:
+            raise ExportError(f"{path} exists and was not written by geomgen (or is not readable as its "
+                              "manifest); geomgen does not replace it: move it away or choose another "
+                              "output folder (nothing was written)")
+    index = out_dir / INDEX
+    if os.path.lexists(index) and (index.is_symlink() or not index.is_file() or not os.path.lexists(path)):
+        raise ExportError(f"{index} exists and was not written by geomgen; move it away or choose another "
+                          "output folder (nothing was written)")
+    return read_manifest(out_dir)
 
-    def __init__(self, out_dir):
+
+class Staging:
+    """Context manager: ``path(name)`` gives a staging path; ``commit(info)`` moves all into place.
+
+    ``overwrite_edited``: replace outputs edited since geomgen wrote them (else refused).
+    The folder's write lock is held from entry to exit.
+    """
+
+    def __init__(self, out_dir, overwrite_edited: bool = False, lock_wait_s: float | None = None):
         self.out_dir = Path(out_dir)
+        self.overwrite_edited = overwrite_edited
         self.names: list[str] = []
         self.purposes: dict[str, str] = {}
         self.dir: Path | None = None
+        self.recovered: list[str] = []
+        self._lock = FolderLock(self.out_dir, lock_wait_s)
+        self._keep = False  # a rollback failed: leave the staging folder for the next run
 
     def __enter__(self):
         try:
             self.out_dir.mkdir(parents=True, exist_ok=True)
-            self.dir = Path(tempfile.mkdtemp(prefix=".geomgen-staging-", dir=self.out_dir))
         except OSError as exc:
             raise ExportError(f"{self.out_dir}: cannot write here: {exc.strerror or exc}") from None
+        self._lock.__enter__()
+        try:
+            self.recovered = self._lock.note() + journal.recover(self.out_dir)
+            self.dir = Path(tempfile.mkdtemp(prefix=journal.STAGING_PREFIX, dir=self.out_dir))
+            (self.dir / "new").mkdir()
+        except OSError as exc:
+            self._lock.__exit__(None, None, None)
+            raise ExportError(f"{self.out_dir}: cannot write here: {exc.strerror or exc}") from None
+        except BaseException:
+            self._lock.__exit__(None, None, None)
+            raise
         return self
 
     def path(self, name: str, purpose: str = "") -> Path:
@@ -71,7 +119,7 @@ class Staging:
             raise ExportError(f"two outputs want the same name '{name}'")
         self.names.append(name)
         self.purposes[name] = purpose
-        p = self.dir / name
+        p = self.dir / "new" / name
         try:
             p.parent.mkdir(parents=True, exist_ok=True)
         except OSError as exc:
@@ -87,14 +135,26 @@ class Staging:
         return p
 
     def _check_foreign(self, previous: dict) -> None:
+        edited = []
         for name in self.names:
             target = self.out_dir / name
+            for parent in list(Path(name).parents)[:-1]:
+                if (self.out_dir / parent).is_symlink() or (os.path.lexists(self.out_dir / parent)
+                                                            and not (self.out_dir / parent).is_dir()):
+                    raise ExportError(f"{self.out_dir / parent} is a link or not a folder; geomgen does not "
+                                      "write through links (nothing was written)")
             if (target.exists() or target.is_symlink()) and name not in previous:
                 raise ExportError(f"{target} exists and was not written by geomgen; "
                                   "move it away or choose another output folder (nothing was written)")
-            if target.is_symlink():
-                raise ExportError(f"{target} is a symbolic link; geomgen does not write through links "
-                                  "(nothing was written)")
+            if target.is_symlink() or (target.exists() and not target.is_file()):
+                raise ExportError(f"{target} is a symbolic link or not a file; geomgen does not write "
+                                  "through links (nothing was written)")
+            if target.exists() and not file_matches(target, previous[name]):
+                edited.append(name)
+        if edited and not self.overwrite_edited:
+            raise ExportError(f"{len(edited)} output(s) were edited after geomgen wrote them (their SHA-256 no "
+                              f"longer matches the manifest): {', '.join(edited)}; move them away, or run again "
+                              "with --overwrite-edited to replace them (nothing was written)")
 
     def commit(self, info: dict) -> Committed:
         """Move every staged file into place and update the manifest and the index.
@@ -105,7 +165,7 @@ class Staging:
         """
         from .. import __version__
 
-        previous = read_manifest(self.out_dir)
+        previous = _own_manifest(self.out_dir)
         self._check_foreign(previous)
         entries = {name: e for name, e in previous.items() if (self.out_dir / name).is_file()}
         stale_remove, stale_keep = [], []
@@ -114,74 +174,79 @@ class Staging:
                 continue
             if e.get("spec_sha256") != info["spec_sha256"] or e.get("geomgen_version") != __version__:
                 if file_matches(self.out_dir / name, e):
-                    stale_remove.append(name)
+                    stale_remove.append(e)
                     del entries[name]
                 else:
                     stale_keep.append(name)
                     entries[name] = {**e, "stale": True}
+        new = self.dir / "new"
         for name in self.names:
-            p = self.dir / name
+            p = new / name
             entries[name] = {"name": name, "size": p.stat().st_size, "sha256": sha256_of(p),
                              "geomgen_version": __version__, "purpose": self.purposes.get(name, ""), **info}
         manifest = {"written_by": "geomgen", "files": [entries[n] for n in sorted(entries)]}
         try:
-            (self.dir / MANIFEST).write_text(json.dumps(manifest, indent=1) + "\n")
-            (self.dir / INDEX).write_text(format_index(manifest["files"]))
+            (new / MANIFEST).write_text(json.dumps(manifest, indent=1) + "\n")
+            (new / INDEX).write_text(format_index(manifest["files"]))
         except OSError as exc:
             raise ExportError(f"{self.out_dir}: cannot write the manifest: {exc.strerror or exc}") from None
-        self._swap_in(self.names + [MANIFEST, INDEX])
-        removed = []
-        for name in stale_remove:
-            try:
-                os.remove(self.out_dir / name)
-                removed.append(name)
-            except OSError:
-                pass
+        removed, interrupted = self._swap_in(self.names + [INDEX], stale_remove)
         _remove_empty_folders(self.out_dir)
-        return Committed([self.out_dir / n for n in self.names], removed, stale_keep)
+        if interrupted:  # Ctrl-C came after the switch: the new set is whole; stop now
+            raise KeyboardInterrupt
+        return Committed([self.out_dir / n for n in self.names], removed, stale_keep, self.recovered)
 
-    def _swap_in(self, names: list[str]) -> None:
-        """Move staged files into place; on any failure put every earlier output back.
-
-        Each existing output is first moved aside into the staging folder (a rename on the
-        same filesystem), so a failure half-way can be undone exactly.
-        """
-        backup = self.dir / ".previous"
-        backup.mkdir()
-        moved_aside, placed = [], []
-        try:
-            for name in names:
-                target = self.out_dir / name
-                target.parent.mkdir(parents=True, exist_ok=True)
-                if target.exists():
-                    (backup / name).parent.mkdir(parents=True, exist_ok=True)
-                    os.replace(target, backup / name)
-                    moved_aside.append(name)
-                os.replace(self.dir / name, target)
-                placed.append(name)
-        except OSError as exc:
-            for name in placed:
+    def _swap_in(self, names: list[str], stale: list[dict]) -> tuple[list[str], bool]:
+        """Journal, place, switch (see :mod:`.journal`); on any failure or Ctrl-C before the
+        switch put every earlier output back."""
+        had_old = {n: os.path.lexists(self.out_dir / n) for n in names}
+        stale = [{"name": e["name"], "size": e.get("size"), "sha256": e.get("sha256")} for e in stale]
+        plan = {"files": [{"name": n, "had_old": had_old[n]} for n in names], "stale": stale}
+        with journal.held_sigint() as interrupted:
+            try:
+                journal.write_plan(self.dir, names, had_old, stale)
+                for name in names:
+                    if interrupted():
+                        raise KeyboardInterrupt
+                    journal.place(self.dir, self.out_dir, name)
+                if interrupted():
+                    raise KeyboardInterrupt
+                journal.switch(self.dir, self.out_dir)
+            except BaseException as exc:
                 try:
-                    os.remove(self.out_dir / name)
-                except OSError:
-                    pass
-            for name in moved_aside:
-                try:
-                    os.replace(backup / name, self.out_dir / name)
-                except OSError:
-                    pass
-            raise ExportError(f"{self.out_dir}: moving outputs into place failed ({exc.strerror or exc}); "
-                              "the previous outputs were put back") from None
+                    journal.roll_back(self.dir, self.out_dir, plan)
+                    (self.dir / journal.PLAN).unlink(missing_ok=True)
+                except OSError as exc2:
+                    self._keep = True
+                    raise ExportError(f"{self.out_dir}: moving outputs into place failed and so did putting "
+                                      f"the previous ones back ({exc2.strerror or exc2}); the next geomgen run "
+                                      "in this folder finishes the rollback") from None
+                if isinstance(exc, OSError):
+                    raise ExportError(f"{self.out_dir}: moving outputs into place failed ({exc.strerror or exc}); "
+                                      "the previous outputs were put back") from None
+                raise
+            removed = journal.roll_forward(self.dir, self.out_dir, plan)
+            (self.dir / journal.PLAN).unlink(missing_ok=True)
+            return removed, interrupted()
 
     def __exit__(self, *exc):
-        if self.dir is not None:
-            shutil.rmtree(self.dir, ignore_errors=True)
+        interrupted = False
+        try:
+            if self.dir is not None and not self._keep:
+                with journal.held_sigint() as hit:  # clean up whole, then let Ctrl-C go on
+                    (self.dir / journal.PLAN).unlink(missing_ok=True)
+                    shutil.rmtree(self.dir, ignore_errors=True)
+                    interrupted = hit()
+        finally:
+            self._lock.__exit__(*exc)
+        if interrupted and exc[0] is None:
+            raise KeyboardInterrupt
         return False
 
 
-def write_set(out_dir, outputs: list[Output], info: dict, say=None) -> Committed:
+def write_set(out_dir, outputs: list[Output], info: dict, say=None, overwrite_edited: bool = False) -> Committed:
     """Write ``outputs`` whole or not at all into ``out_dir`` (see :class:`Staging`)."""
-    with Staging(out_dir) as stage:
+    with Staging(out_dir, overwrite_edited) as stage:
         for out in outputs:
             stage.add(out, say)
         return stage.commit(info)

@@ -39,7 +39,7 @@ def write_shop_parts(project, out_dir=None, *, progress: Callable[[str], None] |
     """
     from ..cad.shape import shape_of
     from ..hydro import shim_trim_change
-    from ..outputs import Output, output_name, write_set
+    from ..outputs import Output, output_name
     from ..project import Project
     from .laminate import laminate_outputs
     from .mount_solids import mount_outputs
@@ -97,7 +97,7 @@ def write_shop_parts(project, out_dir=None, *, progress: Callable[[str], None] |
                        "every shop part: sizes, volumes, poses (datum to file matrices), checks"),
                 Output(output_name(project.name, "parts", suffix=".txt"), "text", lambda: format_parts_summary(res, for_file=True),
                        "what the parts command wrote, per surface")]
-    done = write_set(project.out_dir, outputs, project.output_info("parts"), say)
+    done = project.write("parts", outputs, say)
     res[:] = done.files  # the report and the summary too
     res.notes = done.notes()
     res.seconds = time.perf_counter() - t0

@@ -77,7 +77,7 @@ def write_report(project, out_dir=None, *, progress=None, allow_outside_files: b
     SpecError, GeometryError, ExportError, CheckFailed
         As :func:`geomgen.check.run.check`; nothing of the report is written then.
     """
-    from ..outputs import Output, write_set
+    from ..outputs import Output
     from ..project import Project
 
     project = Project.of(project, out_dir, allow_outside_files=allow_outside_files)
@@ -93,5 +93,5 @@ def write_report(project, out_dir=None, *, progress=None, allow_outside_files: b
                ".json": "every number of the report, with the paths the pages cite",
                ".png": "a drawing of the Markdown report"}
     outs = [Output(n, "bytes", files[n], purpose[Path(n).suffix]) for n in order]
-    done = write_set(project.out_dir, outs, project.output_info("report"))
+    done = project.write("report", outs)
     return ReportFiles(done.files, bool(data["check"]["ok"]), done.notes())

@@ -11,7 +11,7 @@ the upper side), rounded to 0.001 mm.
 from __future__ import annotations
 
 import math
-from pathlib import Path
+
 
 import numpy as np
 

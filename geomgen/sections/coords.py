@@ -27,6 +27,7 @@ from scipy.interpolate import BSpline, make_smoothing_spline
 from .. import defaults
 from ..errors import SpecError
 from .base import Section
+from .readfile import NotReadable, read_capped
 
 MAX_BYTES = 10_000_000  #: larger files are refused (public files are a few kB)
 MAX_LINES = 100_000  #: more lines are refused
@@ -304,12 +305,9 @@ def read_coordinates(path, *, field: str | None = None,
     p = Path(path)
     ctx = _Where(str(path), field)
     try:
-        if p.is_dir():
-            raise ctx.err("is a directory, not a coordinate file")
-        _check_size(ctx, p.stat().st_size)  # before reading it
-        data = p.read_bytes()
+        data = read_capped(p, MAX_BYTES)  # regular files only; the bytes read are capped
     except FileNotFoundError:
         raise ctx.err("file not found") from None
-    except OSError as exc:
-        raise ctx.err(f"cannot read the file ({exc.strerror or exc})") from None
+    except NotReadable as exc:
+        raise ctx.err(str(exc)) from None
     return _build(ctx, _decode(ctx, data), noise)

@@ -32,7 +32,7 @@ def _strictly_increasing(values, what: str):
 class ShopSpec(BaseModel):
     """Section templates (DXF + printable SVG), offset tables (CSV) and hot-wire profiles."""
 
-    model_config = ConfigDict(extra="forbid", validate_default=True)
+    model_config = ConfigDict(extra="forbid", allow_inf_nan=False, validate_default=True)
 
     # -- templates ----------------------------------------------------------------
     templates_at: list[SpanPos] = Field(

@@ -18,7 +18,7 @@ DEFAULT_CHORD_PANELS = 6
 class FlightSpec(BaseModel):
     """Rider and board as the foil sees them. Masses kg, speeds km/h, positions datum mm."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", allow_inf_nan=False)
 
     mass_kg: float = Field(gt=0.0, le=1000.0, description="total mass carried by the foil, kg")
     speeds_kmh: list[Annotated[float, Field(gt=0.0, le=200.0)]] = Field(

@@ -13,8 +13,9 @@ from pathlib import Path
 
 from pydantic import BaseModel, ValidationError
 
-from ..defaults import MIN_STATION_GAP_MM
+from ..defaults import MAX_SPEC_BYTES, MAX_SPEC_DEPTH, MIN_STATION_GAP_MM
 from ..errors import SpecError
+from ..sections.readfile import NotReadable, read_capped
 from .model import Spec
 
 
@@ -141,12 +142,32 @@ def _station_order(data, i, stations, mirror) -> list[str]:
     return out
 
 
+def _too_deep(data, limit: int) -> str | None:
+    """The path of the first value nested deeper than ``limit`` (iterative: no recursion)."""
+    todo = [(data, "", 0)]
+    while todo:
+        node, where, depth = todo.pop()
+        if depth > limit:
+            return where.lstrip(".") or "(top)"
+        items = node.items() if isinstance(node, dict) else enumerate(node) if isinstance(node, list) else ()
+        for k, v in items:
+            if isinstance(v, (dict, list)):
+                todo.append((v, f"{where}[{k}]" if isinstance(k, int) else f"{where}.{k}", depth + 1))
+    return None
+
+
 def load_spec_text(text: str, source: str = "<spec>") -> Spec:
     """Validate spec text; raise :class:`SpecError` listing every problem, each prefixed by ``source``."""
     try:
-        data = tomllib.loads(text)
+        data = tomllib.loads(text.removeprefix("\ufeff"))
     except tomllib.TOMLDecodeError as exc:
         raise SpecError([f"{source}: not valid TOML: {exc}"]) from None
+    except RecursionError:
+        raise SpecError([f"{source}: not valid TOML: nested deeper than Python can read"]) from None
+    deep = _too_deep(data, MAX_SPEC_DEPTH)
+    if deep:
+        raise SpecError([f"{source}: {deep}: nested deeper than {MAX_SPEC_DEPTH} levels; "
+                         "no spec needs that many"])
     problems = []
     spec = None
     try:
@@ -168,11 +189,13 @@ def load_spec(path, allow_outside_files: bool = False) -> Spec:
     """
     path = Path(path)
     try:
-        raw = path.read_bytes()
-    except OSError as exc:
-        raise SpecError([f"{path}: cannot read the spec: {exc.strerror or exc}"]) from None
+        raw = read_capped(path, MAX_SPEC_BYTES)  # regular files only (a FIFO or /dev/zero would hang)
+    except FileNotFoundError:
+        raise SpecError([f"{path}: cannot read the spec: file not found"]) from None
+    except NotReadable as exc:
+        raise SpecError([f"{path}: cannot read the spec: {exc}"]) from None
     try:
-        text = raw.decode("utf-8")
+        text = raw.decode("utf-8-sig")  # a byte-order mark some editors write is accepted
     except UnicodeDecodeError:
         raise SpecError([f"{path}: not a text file (not UTF-8)"]) from None
     spec = load_spec_text(text, str(path))

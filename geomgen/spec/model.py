@@ -19,7 +19,7 @@ from .parts import LaminateSpec, MountSpec, PrintingSpec
 
 
 class _Strict(BaseModel):
-    model_config = ConfigDict(extra="forbid", validate_default=True)
+    model_config = ConfigDict(extra="forbid", allow_inf_nan=False, validate_default=True)
 
 
 _TOL = re.compile(r"^\s*([0-9]*\.?[0-9]+(?:[eE][-+]?\d+)?)\s*%\s*$")
@@ -58,7 +58,7 @@ EXPECTABLE = ("span_mm", "projected_area_cm2", "aspect_ratio", "mac_mm", "mac_y_
 class Expect(_Strict):
     """The calculation sheet's numbers for one surface."""
 
-    model_config = ConfigDict(extra="forbid")
+    model_config = ConfigDict(extra="forbid", allow_inf_nan=False)
     span_mm: Optional[Expectation] = None
     projected_area_cm2: Optional[Expectation] = None
     aspect_ratio: Optional[Expectation] = None
