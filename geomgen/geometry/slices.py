@@ -185,10 +185,17 @@ def section_diameter(points: np.ndarray) -> tuple[float, int, int]:
             idx = ConvexHull(p[:, keep]).vertices
         except Exception:  # degenerate hull: use every point
             pass
+    from scipy.spatial.distance import pdist
+
     q = p[idx]
-    d = np.linalg.norm(q[:, None, :] - q[None, :, :], axis=-1)
-    i, j = np.unravel_index(int(np.argmax(d)), d.shape)
-    return float(d[i, j]), int(idx[i]), int(idx[j])
+    d = pdist(q)  # condensed: pairs (i < j) in row order
+    k = int(np.argmax(d))
+    n = len(q)
+    # row i of the condensed matrix starts at i n - i (i + 1) / 2
+    starts = np.arange(n) * n - np.arange(n) * (np.arange(n) + 1) // 2
+    i = int(np.searchsorted(starts, k, side="right") - 1)
+    j = int(k - starts[i] + i + 1)
+    return float(d[k]), int(idx[i]), int(idx[j])
 
 
 def section_frame(sl: np.ndarray, axis: int) -> tuple[float, int, np.ndarray, np.ndarray]:
