@@ -28,6 +28,7 @@ Torsion constants:
 from __future__ import annotations
 
 import math
+import weakref
 from dataclasses import asdict, dataclass
 from typing import Optional
 
@@ -214,9 +215,19 @@ def section_properties(points: np.ndarray, axis: int, *, laminate_mm: float | No
 SECTION_POINTS = 600
 
 
+_CACHE: "weakref.WeakKeyDictionary" = weakref.WeakKeyDictionary()
+
+
 def model_section_properties(model, y: float, *, torsion: bool = True) -> SectionProps:
-    """Intended properties of a :class:`SurfaceModel`'s finished section at span ``y`` (mm from
-    the root plane), with the shell of its ``[surface.laminate]`` thickness if it has one."""
-    axis = int(np.argmax(np.abs(model.span_axis)))
-    lam = model.spec.laminate.thickness if model.spec.laminate is not None else None
-    return section_properties(model.section_loop(float(y), SECTION_POINTS), axis, laminate_mm=lam, torsion=torsion)
+    """Intended properties of a :class:`SurfaceModel`'s finished section at span ``y`` (the
+    model's span coordinate), with the shell of its ``[surface.laminate]`` thickness if it has
+    one. Computed once per model and position (the report, the check and the loads share them)."""
+    per = _CACHE.setdefault(model, {})
+    y = round(float(y), 9)
+    hit = per.get((y, True)) or (None if torsion else per.get((y, False)))
+    if hit is None:
+        axis = int(np.argmax(np.abs(model.span_axis)))
+        lam = model.spec.laminate.thickness if model.spec.laminate is not None else None
+        hit = per[(y, torsion)] = section_properties(model.section_loop(y, SECTION_POINTS), axis, laminate_mm=lam,
+                                                     torsion=torsion)
+    return hit
