@@ -113,3 +113,15 @@ def test_loads_needs_a_stated_condition_and_a_material(tmp_path, write_spec):
                                   "pla-printed", "-o", str(tmp_path / "x")])
     assert r.exit_code == 2 and "flight" in r.output and "Traceback" not in r.output
     assert not (tmp_path / "x" / "report").exists()
+
+
+def test_loads_honours_the_outside_files_flag(tmp_path):
+    from test_cli import outside_spec
+
+    spec = outside_spec(tmp_path)
+    args = ["loads", str(spec), "--speed", "20", "--load-factor", "1", "--material", "pla-printed", "-o",
+            str(tmp_path / "o")]
+    r = CliRunner().invoke(main, args)
+    assert r.exit_code == 2 and "outside the spec's folder" in r.output
+    r = CliRunner().invoke(main, ["--allow-outside-files"] + args)
+    assert "outside the spec's folder" not in r.output and "flight" in r.output  # the next refusal: no [flight]
