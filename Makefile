@@ -30,6 +30,7 @@ bench: $(STAMP)
 	$(BIN)/python bench/bench.py
 	$(BIN)/python bench/bench_hydro.py
 	$(BIN)/python bench/bench_studies.py
+	$(BIN)/python bench/bench_sections.py
 
 # Long property-based run (>= 10,000 generated specs); result recorded in DEVELOPERS.md.
 fuzz-long: $(STAMP)

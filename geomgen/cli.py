@@ -204,6 +204,45 @@ def balance(spec, out_dir, cg_x, sideslip, as_json, allow_outside_files):
 
 @main.command()
 @spec_argument
+@click.option("--speed", "speed_kmh", type=click.FloatRange(0.1, 200.0), required=True,
+              help="speed of the stated condition, km/h (no default: say which condition you mean)")
+@click.option("--load-factor", type=click.FloatRange(0.1, 20.0), required=True,
+              help="lift as a multiple of the [flight] weight (1 = steady flight; no default)")
+@click.option("--material", type=str, default=None,
+              help="a material of the example table (see the error for the list), or give --e-gpa and --g-gpa")
+@click.option("--e-gpa", type=click.FloatRange(0.1, 1000.0), default=None, help="Young's modulus along the span, GPa")
+@click.option("--g-gpa", type=click.FloatRange(0.05, 500.0), default=None, help="shear modulus, GPa")
+@click.option("--density", "density", type=click.FloatRange(10.0, 30000.0), default=None,
+              help="material density, kg/m³ (mast frequency)")
+@click.option("--allowable", "allowable_mpa", type=click.FloatRange(0.1, 10000.0), default=None,
+              help="your allowable bending stress, MPa: gives a margin (never a verdict)")
+@click.option("--side-force", "side_force_n", type=click.FloatRange(1.0, 1e5), default=100.0, show_default=True,
+              help="side force at the mast's end (the fuselage) for the mast figures, N")
+@out_option
+@json_option
+@outside_option
+def loads(spec, speed_kmh, load_factor, material, e_gpa, g_gpa, density, allowable_mpa, side_force_n, out_dir,
+          as_json, allow_outside_files):
+    """First estimates (for planning, not a structural analysis) of SPEC's loads and stiffness:
+    shear, bending moment, stress, tip deflection and twist of wings and stabilizers at a
+    stated speed and load factor; mast deflection, stress and torsional stiffness per side
+    force. Writes the summary and JSON into the output folder's report/."""
+    import json
+
+    from .strength import format_loads, loads as do_loads, material_of, write_loads
+
+    mat = material_of(material, e_gpa, g_gpa, density)
+    project = _project(spec, out_dir, allow_outside_files)
+    res = do_loads(project, speed_kmh, load_factor, mat, allowable_mpa, side_force_n)
+    text = format_loads(res)
+    click.echo(json.dumps(res, indent=2) if as_json else text)
+    done = write_loads(project, res, text)
+    for n in done.notes():
+        click.echo(f"note: {n}", err=True)
+
+
+@main.command()
+@spec_argument
 @out_option
 @outside_option
 def drawings(spec, out_dir, allow_outside_files):

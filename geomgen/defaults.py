@@ -52,6 +52,13 @@ CHECK_RELATIVE = 5e-4        # areas, aspect ratio, taper (STEP), relative
 CHECK_VOLUME_REL = 1e-3      # volume and wetted area (STEP), relative
 CHECK_ANGLE_DEG = 0.05       # quarter-chord sweep
 CHECK_THICKNESS_MM = 0.03    # section thickness at stations (STEP)
+#: Section properties at stations (STEP): every point of the written section may sit this far
+#: from the intended one (skin within 0.005 mm of the sections, slice within 0.01 mm of the
+#: skin), so area may differ by this x perimeter and a second moment by this x perimeter x the
+#: squared extreme-fibre distance. The warping J of two polygons with different points differs
+#: by the mesh as well: CHECK_TORSION_REL more, relative.
+CHECK_SECTION_MM = 0.02
+CHECK_TORSION_REL = 0.01
 
 # -- kernel tolerances (the CAD edge, geomgen/cad/) ----------------------------------------------
 #: Sewing tolerance of the skin, trailing-edge strip and caps, mm: far below any feature, far

@@ -344,7 +344,7 @@ def test_json_is_strict_and_pages_come_from_it_alone(cg_data, cg_files):
     text = cg_files["report/lakeside-cruiser-report.json"].decode()
     assert json.loads(text) == cg_data and "NaN" not in text
     images = {k: cg_files[f"report/lakeside-cruiser-report-{k}.png"] for k in
-              ("top", "side", "spanwise", "sections-front-wing", "sections-stabilizer", "sections-mast")}
+              ("top", "side", "spanwise", "stiffness", "sections-front-wing", "sections-stabilizer", "sections-mast")}
     assert to_html(json.loads(text), images).encode() == cg_files["report/lakeside-cruiser-report.html"]
     names = {k: f"lakeside-cruiser-report-{k}.png" for k in images}
     assert to_markdown(json.loads(text), names).encode() == cg_files["report/lakeside-cruiser-report.md"]

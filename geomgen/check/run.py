@@ -13,6 +13,7 @@ from ..geometry.slices import Frame
 from ..outputs import Output, output_name, output_state, stale_outputs
 from ..project import Project
 from .compare import Record, compare_part, station_records
+from .sections import section_records
 
 
 @dataclass
@@ -92,6 +93,7 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
 
     t2 = time.perf_counter()
     records, parts = [], {}
+    section_seconds = 0.0
     for m, sspec in zip(project.models, project.spec.surface):
         say(f"measuring {m.name}")
         step_name, stl_name = names[m.name]
@@ -117,12 +119,17 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
         records += compare_part(m.name, intended, ms["figures"], st["figures"], project.stl_tol,
                                 {k: v for k, v in expect.items() if v is not None})
         records += station_records(m.name, m, ms["stations"], sspec.check_at)
+        t_sec = time.perf_counter()
+        sec_recs, sec_table = section_records(m.name, m, ms["stations"], ms["axis"], sspec.check_at, expect)
+        records += sec_recs
+        section_seconds += time.perf_counter() - t_sec
         parts[m.name] = {"role": m.role, "step": step_name, "stl": stl_name,
                          "skin_sampling_mm": ms["sampling_mm"], "stl_triangles": st["triangles"],
-                         "watertight": st["watertight"]}
+                         "watertight": st["watertight"], "sections": sec_table}
     t3 = time.perf_counter()
     res = CheckResult(project.name, out, built, records, parts,
-                      {"build_or_reuse": t1 - t0, "kernel_import": t2 - t1, "measure": t3 - t2}, project.stl_tol)
+                      {"build_or_reuse": t1 - t0, "kernel_import": t2 - t1, "measure": t3 - t2,
+                       "section_properties": section_seconds}, project.stl_tol)
     res.modified, res.stale, res.notes = modified, stale, notes
     if project.spec.flight is not None:
         from ..errors import GeomgenError

@@ -164,10 +164,33 @@ def section_diameter(points: np.ndarray) -> tuple[float, int, int]:
             idx = ConvexHull(p[:, keep]).vertices
         except Exception:  # degenerate hull: use every point
             pass
+    from scipy.spatial.distance import pdist
+
     q = p[idx]
-    d = np.linalg.norm(q[:, None, :] - q[None, :, :], axis=-1)
-    i, j = np.unravel_index(int(np.argmax(d)), d.shape)
-    return float(d[i, j]), int(idx[i]), int(idx[j])
+    d = pdist(q)  # condensed: pairs (i < j) in row order
+    k = int(np.argmax(d))
+    n = len(q)
+    # row i of the condensed matrix starts at i n - i (i + 1) / 2
+    starts = np.arange(n) * n - np.arange(n) * (np.arange(n) + 1) // 2
+    i = int(np.searchsorted(starts, k, side="right") - 1)
+    j = int(k - starts[i] + i + 1)
+    return float(d[k]), int(idx[i]), int(idx[j])
+
+
+def section_frame(sl: np.ndarray, axis: int) -> tuple[float, int, np.ndarray, np.ndarray]:
+    """(chord, index of the leading edge, unit chord direction (3,), unit normal (3,)) of an
+    ordered section polyline (n, 3) in a plane normal to datum ``axis``: the chord line of
+    :func:`chord_and_thickness`, the normal in the section plane (toward +z for a horizontal
+    part with the chord along +x)."""
+    chord, i, j = section_diameter(sl)
+    n = len(sl)
+    # the leading edge is the end of the pair farther (in index) from the polyline's ends
+    i_le, i_te = (i, j) if min(i, n - 1 - i) >= min(j, n - 1 - j) else (j, i)
+    e = (sl[i_te] - sl[i_le]) / chord
+    a, b = [k for k in range(3) if k != axis]
+    nrm = np.zeros(3)
+    nrm[a], nrm[b] = -e[b], e[a]
+    return chord, i_le, e, nrm
 
 
 def chord_and_thickness(sl: np.ndarray, axis: int) -> dict:
@@ -184,16 +207,7 @@ def chord_and_thickness(sl: np.ndarray, axis: int) -> dict:
     * thickness: the largest distance between upper and lower surface measured normal to
       that chord line, at equal position along it.
     """
-    chord, i, j = section_diameter(sl)
-    n = len(sl)
-    # the leading edge is the end of the pair farther (in index) from the polyline's ends
-    i_le, i_te = (i, j) if min(i, n - 1 - i) >= min(j, n - 1 - j) else (j, i)
-    e = (sl[i_te] - sl[i_le]) / chord
-    plane_axes = [k for k in range(3) if k != axis]
-    # normal to the chord within the section plane
-    nrm = np.zeros(3)
-    a, b = plane_axes
-    nrm[a], nrm[b] = -e[b], e[a]
+    chord, i_le, e, nrm = section_frame(sl, axis)
     x = (sl - sl[i_le]) @ e
     h = (sl - sl[i_le]) @ nrm
     up_x, up_h = x[: i_le + 1][::-1], h[: i_le + 1][::-1]

@@ -211,6 +211,30 @@ def _spanwise(data) -> list:
     return [Heading(2, ["Spanwise distributions"], "spanwise"), Figure("spanwise", "spanwise distributions", cap + ["."])]
 
 
+def _section_properties(data) -> list:
+    rows = []
+    for i, _ in enumerate(data["surfaces"]):
+        R = lambda k, f="sig": V(("surfaces", i, "section_props", "root", k), f)  # noqa: E731
+        rows.append([[V(("surfaces", i, "name"), "str")], [R("area_mm2", ".1f")], [R("centroid_x_mm", ".1f")],
+                     [R("centroid_z_mm", "+.2f")], [R("i_chord_mm4", ".0f")], [R("i_normal_mm4", ".0f")],
+                     [R("principal_deg", "+.2f")], [R("w_chord_mm3", ".0f")], [R("j_solid_mm4", ".0f")],
+                     [R("j_shell_mm4", ".0f")]])
+    header = [["part"], ["area mm²"], ["centroid from leading edge mm"], ["centroid above chord mm"],
+              ["I chord axis mm⁴"], ["I normal axis mm⁴"], ["principal axis °"], ["W extreme fibre mm³"],
+              ["J solid mm⁴"], ["J laminate shell mm⁴"]]
+    return [Heading(2, ["Section properties"], "section-properties"),
+            Para(["FIRST ESTIMATES FOR PLANNING, NOT A STRUCTURAL ANALYSIS. Geometric properties of the intended "
+                  "sections (the check table holds them measured from the written STEP at every station). "
+                  "Second moments about centroidal axes parallel and normal to the chord line; J of the solid by "
+                  "a warping-function solution, of a laminate shell by Bredt–Batho. For loads, stresses and "
+                  "deflections at a condition you state, run the loads command. A part must be proven by test "
+                  "and by qualified engineering before anyone rides it."], "caution"),
+            Table(header, rows, numeric=set(range(1, len(header))), caption=["Root sections."]),
+            Figure("stiffness", "section stiffness along the span",
+                   ["Second moments along the span and J at the stations (log scale); below, each root "
+                    "section with its centroid and principal axes."])]
+
+
 def _check(data) -> list:
     c = data["check"]
     rows, bad = [], []
@@ -243,4 +267,4 @@ def page(data) -> list:
             Bullets([[V(("check", "summary", i), "str")] for i in range(len(data["check"]["summary"]))],
                     "ok" if data["check"]["ok"] else "bad")]
     return (head + _main_figures(data) + _balance(data) + _views(data) + _sections(data) + _spanwise(data)
-            + _check(data) + [Heading(2, ["Caution"], "caution"), caution])
+            + _section_properties(data) + _check(data) + [Heading(2, ["Caution"], "caution"), caution])

@@ -118,6 +118,27 @@ def _spanwise(model) -> dict:
     return {"y_mm": _r(ys), "chord_mm": _r(model.chord(ys)), "twist_deg": _r(model.planform("twist", ys), 4)}
 
 
+def _section_props(model) -> dict:
+    """Section properties for the report: the root section (with J) and its shape in its chord
+    frame, second moments along the span (no J: the polygon figures are cheap), J at the stations."""
+    from ..geometry.sectionprops import chord_frame, model_section_properties
+
+    y0, y1 = float(model.planform.y[0]), float(model.half_span)
+    root = model_section_properties(model, y0)
+    axis = int(np.argmax(np.abs(model.span_axis)))
+    shape, _, _ = chord_frame(model.section_loop(y0, SECTION_POINTS), axis)
+    t = 0.5 * (1.0 - np.cos(np.linspace(0.0, math.pi * 0.97, 25)))
+    ys = y0 + (y1 - y0) * t
+    along = [model_section_properties(model, float(y), torsion=False) for y in ys]
+    st = [model_section_properties(model, float(y)) for y in model.planform.y]
+    return {"root": root.as_dict() | {"w_chord_mm3": root.w_chord_mm3, "y_mm": y0},
+            "root_shape": {"x_mm": _r(shape[:, 0]), "z_mm": _r(shape[:, 1])},
+            "span": {"y_mm": _r(ys - y0), "i_chord_mm4": [p.i_chord_mm4 for p in along],
+                     "i_normal_mm4": [p.i_normal_mm4 for p in along]},
+            "stations": {"y_mm": [float(y) - y0 for y in model.planform.y], "j_mm4": [p.j_solid_mm4 for p in st],
+                         "j_shell_mm4": [p.j_shell_mm4 for p in st]}}
+
+
 def _side(model) -> dict:
     """Side view (x–z): root and tip sections of a horizontal part, true shape; the root chord line."""
     y0 = 0.0 if model.mirror else float(model.planform.y[0])
@@ -240,7 +261,8 @@ def drawing_data(project, *, progress=None) -> dict:
              "position_mm": list(m.position), "reference": m.spec.reference, "incidence_deg": m.spec.incidence,
              "te_thickness_mm": m.te_thickness, "interpolation": m.spec.interpolation,
              "figures": fig, "measured": {}, "mac": _mac(m, fig), "outline": _outline(m),
-             "stations": _stations(m), "spanwise": _spanwise(m), "loading": loading.get(m.name)}
+             "stations": _stations(m), "spanwise": _spanwise(m), "loading": loading.get(m.name),
+             "section_props": _section_props(m)}
         if m.orientation == "horizontal":
             s["side"] = _side(m)
         else:

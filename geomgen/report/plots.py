@@ -292,6 +292,44 @@ def spanwise(data) -> bytes:
     return _png(fig)
 
 
+def stiffness(data) -> bytes:
+    """Second moments and torsion constants along the span (log scale), and each part's root
+    section with its centroid and principal axes."""
+    surfs = data["surfaces"]
+    fig = plt.figure(figsize=(8.0, 4.2 + 1.6 * len(surfs)), layout="constrained")
+    gs = fig.add_gridspec(1 + len(surfs), 1, height_ratios=[3.0] + [1.4] * len(surfs))
+    a = fig.add_subplot(gs[0])
+    for s in surfs:
+        sp, role = s["section_props"], s["role"]
+        _line(a, sp["span"]["y_mm"], sp["span"]["i_chord_mm4"], role, label=f"{s['name']}: I about chord axis")
+        a.plot(sp["span"]["y_mm"], sp["span"]["i_normal_mm4"], color=_st(role)["color"], lw=0.8, ls=":")
+        a.plot(sp["stations"]["y_mm"], sp["stations"]["j_mm4"], ls="none", marker=_st(role)["marker"],
+               color=_st(role)["color"], mec="black", mew=0.5, ms=5, label=f"{s['name']}: J (solid) at stations")
+    a.set_yscale("log")
+    a.set_xlabel("span position from the root, mm")
+    a.set_ylabel("mm⁴")
+    a.set_title("Section stiffness along the span (dotted: I about the chord-normal axis)", fontsize=10)
+    a.grid(True, which="both", color="#e4e4e4", lw=0.5)
+    a.legend(fontsize=7)
+    for k, s in enumerate(surfs):
+        sp = s["section_props"]
+        r, sh = sp["root"], sp["root_shape"]
+        b = fig.add_subplot(gs[k + 1])
+        b.fill(sh["x_mm"], sh["z_mm"], color=_st(s["role"])["color"], alpha=0.18, lw=0)
+        _line(b, sh["x_mm"], sh["z_mm"], s["role"], lw=1.1)
+        cx, cz, c = r["centroid_x_mm"], r["centroid_z_mm"], r["chord_mm"]
+        th = np.radians(r["principal_deg"])
+        for ang, ln in ((th, 0.45 * c), (th + np.pi / 2, 0.12 * c)):
+            b.plot([cx - ln * np.cos(ang), cx + ln * np.cos(ang)], [cz - ln * np.sin(ang), cz + ln * np.sin(ang)],
+                   color="black", lw=0.7, ls="--")
+        b.plot([cx], [cz], marker="+", color="black", ms=9)
+        b.set_aspect("equal", adjustable="datalim")
+        b.set_title(f"{s['name']} root section: centroid + at {format_value(cx, '.1f')} mm, principal axes "
+                    f"dashed ({format_value(r['principal_deg'], '+.2f')}° from the chord line)", fontsize=8)
+        b.tick_params(labelsize=7)
+    return _png(fig)
+
+
 def render_all(data, progress=None) -> dict:
     """Image key -> PNG bytes, for every figure the report's blocks name."""
     say = progress or (lambda m: None)
@@ -300,4 +338,5 @@ def render_all(data, progress=None) -> dict:
     for s in data["surfaces"]:
         out[f"sections-{s['name']}"] = sections(data, s)
     out["spanwise"] = spanwise(data)
+    out["stiffness"] = stiffness(data)
     return out

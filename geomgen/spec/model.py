@@ -52,7 +52,8 @@ class Expectation(_Strict):
 #: Figures a surface's ``expect`` table may name (definitions in DEVELOPERS.md).
 EXPECTABLE = ("span_mm", "projected_area_cm2", "aspect_ratio", "mac_mm", "mac_y_mm",
               "mac_le_x_mm", "mac_qc_x_mm", "root_chord_mm", "tip_chord_mm", "taper_ratio",
-              "sweep_qc_deg", "volume_cm3", "wetted_area_cm2")
+              "sweep_qc_deg", "volume_cm3", "wetted_area_cm2", "root_area_mm2", "root_i_chord_mm4",
+              "root_i_normal_mm4", "root_j_mm4")
 
 
 class Expect(_Strict):
@@ -72,6 +73,12 @@ class Expect(_Strict):
     sweep_qc_deg: Optional[Expectation] = None
     volume_cm3: Optional[Expectation] = None
     wetted_area_cm2: Optional[Expectation] = None
+    root_area_mm2: Optional[Expectation] = Field(None, description="cross-section area at the root station, mm²")
+    root_i_chord_mm4: Optional[Expectation] = Field(
+        None, description="root section's second moment about its centroidal axis parallel to the chord, mm⁴")
+    root_i_normal_mm4: Optional[Expectation] = Field(
+        None, description="root section's second moment about its centroidal axis normal to the chord, mm⁴")
+    root_j_mm4: Optional[Expectation] = Field(None, description="root section's torsion constant (solid), mm⁴")
 
 
 class CheckAt(_Strict):
@@ -80,6 +87,12 @@ class CheckAt(_Strict):
     y: float = Field(ge=0.0, description="span position from the root (centreline of a mirrored part), mm")
     chord: Optional[Expectation] = Field(None, description="expected chord, mm")
     thickness: Optional[Expectation] = Field(None, description="expected maximum thickness, mm")
+    area_mm2: Optional[Expectation] = Field(None, description="expected cross-section area, mm²")
+    i_chord_mm4: Optional[Expectation] = Field(
+        None, description="expected second moment about the centroidal axis parallel to the chord, mm⁴")
+    i_normal_mm4: Optional[Expectation] = Field(
+        None, description="expected second moment about the centroidal axis normal to the chord, mm⁴")
+    j_mm4: Optional[Expectation] = Field(None, description="expected torsion constant of the solid section, mm⁴")
     profile_tol: Optional[float] = Field(
         None, gt=0.0, le=10.0, description="largest allowed distance of the written section from the intended one, mm")
 
