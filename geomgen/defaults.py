@@ -79,3 +79,11 @@ SHOP_VOLUME_BALANCE_REL = 1e-3
 #: shorter than min(this, 5 % of the chordal tolerance) are collapsed (single-precision STL).
 MESH_MERGE_TOL_MM = 1e-5
 MESH_SHORT_EDGE_MM = 1e-3
+
+# -- hydrodynamics ---------------------------------------------------------------------------
+#: Memory budget of one vortex-lattice solve, bytes (1 GiB): a lattice whose matrices
+#: (influence, wash at the force points, Trefftz wash, the solver's copy, free-surface images:
+#: LATTICE_MATRICES x N² float64) would exceed it is refused before anything is allocated.
+#: The machines this runs on have a few GiB shared between users; 1 GiB is about 4000 panels.
+LATTICE_MEMORY_BUDGET_BYTES = 1 << 30
+LATTICE_MATRICES = 8

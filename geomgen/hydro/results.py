@@ -125,6 +125,42 @@ class Lateral(_Record):
 
 
 @dataclass
+class FreeSurface(_Record):
+    """The still-water surface and what it changes against deep water (same set, same speeds).
+
+    ``surfaces``: per surface its depth (root quarter chord and shallowest point, mm; root
+    depth over its MAC), lift-slope ratio to deep water and CL change at the reference
+    attitude. ``trim``: per speed the change of attitude (deg), of each surface's lift (N),
+    of the centre of pressure (mm, + aft) and of the induced drag (N)."""
+
+    water_z_mm: float
+    how: str
+    surfaces: list
+    neutral_point_shift_mm: float
+    neutral_point_shift_pct_mac: float
+    deep_neutral_point_x_mm: float
+    trim: list
+    limits: str
+
+
+@dataclass
+class Cavitation(_Record):
+    """Cavitation onset per surface (lifting surfaces trimmed, masts and fins at zero lift).
+
+    ``surfaces``: per surface the onset speed (m/s, km/h; None if none up to the search's
+    end), where (span y mm, chord x/c, side), the strip's cl and Cp,min there and its depth
+    (mm). ``margin_at_speeds``: per trim speed and lifting surface, σ + Cp,min of the worst
+    strip (positive: no cavitation)."""
+
+    surfaces: list
+    first_kmh: float
+    first_surface: Optional[str]
+    margin_at_speeds: list
+    sections_solved: int
+    notes: list
+
+
+@dataclass
 class HydroResult(_Record):
     """The set at the reference attitude, its neutral point and (with a ``[flight]``) its trim."""
 
@@ -156,5 +192,7 @@ class HydroResult(_Record):
     trim: list = field(default_factory=list)
     takeoff: Optional[Takeoff] = None
     lateral: Optional[Lateral] = None
+    free_surface: Optional[FreeSurface] = None
+    cavitation: Optional[Cavitation] = None
     notes: list = field(default_factory=list)
     caution: str = ""

@@ -120,6 +120,48 @@ def format_hydro(r) -> str:
                     f"Clβ {la.roll_moment_per_deg:.5f} /deg, Cnβ {la.yaw_moment_per_deg:.5f} /deg "
                     "(right-hand about datum x and z, front-wing S and span)"]
         out += ["  " + ", ".join(f"{k} {v:.5f}" for k, v in la.side_force_slope_per_deg.items()) + " (CYβ share /deg)"]
+    if r.free_surface is not None:
+        out += free_surface_lines(r.free_surface)
+    if r.cavitation is not None:
+        out += cavitation_lines(r.cavitation)
     out += [""] + [f"Note: {n}" for n in r.notes]
     out += [""] + textwrap.wrap("CAUTION: " + r.caution, 100)
     return "\n".join(out)
+
+
+def free_surface_lines(fs) -> list[str]:
+    """The free-surface comparison against deep water, with the model's limits."""
+    out = ["", f"Free surface: still water at z = {fs.water_z_mm:.0f} mm ({fs.how}); against deep water:"]
+    rows = [[s["name"], _f(s["depth_root_mm"], ".0f"), _f(s["depth_min_mm"], ".0f"), _f(s["depth_over_mac"], ".2f"),
+             _f(s["lift_slope_change_pct"], "+.2f")] for s in fs.surfaces]
+    out += table(["surface", "depth root mm", "depth min mm", "depth/MAC", "CLα change %"], rows)
+    out.append(f"Neutral point moves {fs.neutral_point_shift_mm:+.1f} mm ({fs.neutral_point_shift_pct_mac:+.2f} % MAC; "
+               f"+ aft) from {fs.deep_neutral_point_x_mm:.1f} mm in deep water")
+    if fs.trim:
+        names = list(fs.trim[0]["lift_change_n"])
+        rows = [[_f(t["speed_kmh"], ".1f"), _f(t["froude_depth"], ".2f"), _f(t["attitude_change_deg"], "+.2f")]
+                + [_f(t["lift_change_n"][n], "+.1f") for n in names]
+                + [_f(t["cp_shift_mm"], "+.1f"), _f(t["induced_drag_change_n"], "+.2f")] for t in fs.trim]
+        out += table(["km/h", "V/√(g·h)", "attitude Δ°"] + [f"{n} ΔL N" for n in names] + ["cp Δ mm", "Di Δ N"],
+                     rows, left=0)
+    out += textwrap.wrap("Limits: " + fs.limits + ".", 100)
+    return out
+
+
+def cavitation_lines(cv) -> list[str]:
+    """Cavitation onset per surface, the margins at the trim speeds, and the method's limits."""
+    out = ["", "Cavitation onset (first estimate; trimmed, lift = weight):"]
+    rows = [[s["name"], _f(s["onset_kmh"], ".1f"), _f(s["onset_ms"], ".2f"), _f(s["y_mm"], ".0f"),
+             _f(s["x_over_c"], ".3f"), s["side"], _f(s["cl"], ".3f"), _f(s["cp_min"], ".3f"), _f(s["depth_mm"], ".0f"),
+             s["where"]] for s in cv.surfaces]
+    out += table(["surface", "km/h", "m/s", "y mm", "x/c", "side", "cl", "Cp,min", "depth mm", "where"], rows)
+    if cv.first_surface:
+        out.append(f"First cavitation: '{cv.first_surface}' at about {cv.first_kmh:.0f} km/h.")
+    if cv.margin_at_speeds:
+        names = [k for k in cv.margin_at_speeds[0] if k != "speed_kmh"]
+        rows = [[_f(m["speed_kmh"], ".1f")] + [_f(m[n], ".2f") for n in names] for m in cv.margin_at_speeds]
+        out += ["Margin σ + Cp,min of the worst strip (positive: no cavitation):"]
+        out += table(["km/h"] + names, rows, left=0)
+    for n in cv.notes:
+        out += textwrap.wrap("Cavitation: " + n, 100)
+    return out

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Annotated, Literal, Optional, Union
 
-from pydantic import BaseModel, ConfigDict, Field, StrictBool
+from pydantic import BaseModel, ConfigDict, Field, StrictBool, model_validator
 
 #: Default vortex-lattice strips per half span (cosine spaced). At these counts doubling
 #: both counts moves the neutral point of the demo set by well under 0.2 % MAC
@@ -41,3 +41,24 @@ class FlightSpec(BaseModel):
         False, description="put masts and fins in the lattice and report sideslip (side force)")
     vertical_in_pitch: StrictBool = Field(
         False, description="count masts and fins in the pitch balance as well (normally left out)")
+    ride_height_mm: Optional[float] = Field(
+        None, ge=0.0, le=5000.0, description="height of the board's underside above the still water, mm; the "
+                                             "board sits on the top of the mast (free surface from the mast)")
+    depth_mm: Optional[float] = Field(
+        None, ge=0.0, le=1.0e6, description="depth of the datum origin below the still water, mm (free surface "
+                                            "given directly; for a set without a mast)")
+    cruise_kmh: Optional[float] = Field(
+        None, gt=0.0, le=200.0, description="cruise speed for where the rider stands and the stabilizer shim, "
+                                            "km/h (default: the middle of speeds_kmh)")
+    rider_from_mast_mm: Optional[float] = Field(
+        None, ge=-2000.0, le=2000.0, description="where the rider's weight acts, mm along datum x from the mast "
+                                                 "reference (negative: ahead of the mast)")
+    stabilizer_lift_kgf: Optional[float] = Field(
+        None, ge=-500.0, le=500.0, description="stabilizer lift wanted at the cruise speed, kgf (negative: "
+                                               "down-force); the balance solves the shim that gives it")
+
+    @model_validator(mode="after")
+    def _one_water_level(self):
+        if self.ride_height_mm is not None and self.depth_mm is not None:
+            raise ValueError("give ride_height_mm or depth_mm, not both (each sets the still-water level)")
+        return self
