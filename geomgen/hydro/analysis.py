@@ -25,8 +25,9 @@ import numpy as np
 
 from .. import CAUTION
 from ..geometry.figures import PlanformFigures, planform_figures
-from ..spec.flight import DEFAULT_CHORD_PANELS, DEFAULT_SPAN_PANELS
+from ..spec.flight import DEFAULT_CHORD_PANELS, DEFAULT_CL_MAX, DEFAULT_SPAN_PANELS
 from .cavitation import cavitation
+from .drag import performance
 from .freesurface import LIMITS, check_submerged, compare, water_level
 from .lattice import build_lattice
 from .results import HydroResult, Lateral, Loading, SurfaceHydro
@@ -260,14 +261,15 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
     if fl is not None:
         w = resolve_water(fl.fluid, fl.temperature_c, fl.viscosity_m2s)
         result.water, result.mass_kg = w.as_dict(), fl.mass_kg
-        v_to = None
-        if fl.cl_max is not None:
-            result.takeoff = takeoff(flow, ctx, fl.mass_kg, w.density, fl.cl_max)
-            v_to = result.takeoff.speed_ms
+        cl_max = fl.cl_max if fl.cl_max is not None else DEFAULT_CL_MAX
+        result.takeoff = takeoff(flow, ctx, fl.mass_kg, w.density, cl_max)
+        v_to = result.takeoff.speed_ms
         result.trim = [trim_point(flow, ctx, v, fl.mass_kg, w, cg, v_to) for v in fl.speeds_kmh]
         if free_surface:  # not for the deep-water twin of a comparison
             start = v_to if v_to and math.isfinite(v_to) else min(fl.speeds_kmh) / 3.6
             result.cavitation = cavitation(flow, ctx, models, w, water_z, fl.mass_kg, start, fl.speeds_kmh)
+            result.performance = performance(flow, ctx, models, w, water_z, fl.mass_kg, fl.speeds_kmh,
+                                             result.takeoff, result.cavitation.first_kmh, fl.cl_max is not None)
     if water_z is not None:
         deep = analyse(models, fl, span_panels=ns, chord_panels=nc, alpha_deg=alpha_deg, cg_x_mm=cg_x_mm,
                        include_vertical=False, vertical_in_pitch=v_pitch, free_surface=False)

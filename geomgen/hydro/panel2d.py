@@ -112,9 +112,8 @@ class SectionFlow:
         return np.array([float(np.min(self.cp(float(c)))) for c in np.atleast_1d(cl)])
 
 
-def solve_nodes(nodes: np.ndarray) -> SectionFlow:
-    """Solve the panel model on ``nodes`` ((N+1, 2), clockwise from the lower trailing edge)."""
-    nodes = np.asarray(nodes, float)
+def _system(nodes: np.ndarray):
+    """Matrix, right-hand sides and the tangential-velocity operator of one node set."""
     N = len(nodes) - 1
     mid = 0.5 * (nodes[:-1] + nodes[1:])
     d = nodes[1:] - nodes[:-1]
@@ -128,15 +127,37 @@ def solve_nodes(nodes: np.ndarray) -> SectionFlow:
     rhs = np.zeros((N + 1, 2))
     rhs[:N, 0] = -nrm[:, 0]
     rhs[:N, 1] = -nrm[:, 1]
-    g = np.linalg.solve(A, rhs)                                 # (N+1, 2)
-    at = vx * t[:, 0:1] + vz * t[:, 1:2]
+    return A, rhs, vx * t[:, 0:1] + vz * t[:, 1:2], t, mid, np.hypot(d[:, 0], d[:, 1])
+
+
+def _flow(nodes, g, at, t, mid, L) -> SectionFlow:
     vt = (at @ g).T + t.T                                       # (2, N): induced + free stream
-    L = np.hypot(d[:, 0], d[:, 1])
     circ = ((g[:-1] + g[1:]) * 0.5 * L[:, None]).sum(axis=0)    # counter-clockwise Γ per unit stream
     chord = float(nodes[:, 0].max() - nodes[:, 0].min())
     le = int(np.argmin(nodes[:, 0]))
-    return SectionFlow(x=mid[:, 0], z=mid[:, 1], upper=np.arange(N) >= le, vt=vt,
+    return SectionFlow(x=mid[:, 0], z=mid[:, 1], upper=np.arange(len(mid)) >= le, vt=vt,
                        cl_unit=-2.0 * circ / chord)
+
+
+def solve_nodes(nodes: np.ndarray) -> SectionFlow:
+    """Solve the panel model on ``nodes`` ((N+1, 2), clockwise from the lower trailing edge)."""
+    return solve_many([nodes])[0]
+
+
+def solve_many(node_sets) -> list[SectionFlow]:
+    """Solve several node sets; those of equal size share one batched LAPACK call (many small
+    separate solves were slowed 10x by BLAS threads on a busy machine)."""
+    node_sets = [np.asarray(n, float) for n in node_sets]
+    systems = [_system(n) for n in node_sets]
+    out = [None] * len(node_sets)
+    sizes = {}
+    for i, n in enumerate(node_sets):
+        sizes.setdefault(len(n), []).append(i)
+    for idx in sizes.values():
+        g = np.linalg.solve(np.stack([systems[i][0] for i in idx]), np.stack([systems[i][1] for i in idx]))
+        for k, i in enumerate(idx):
+            out[i] = _flow(node_sets[i], g[k], *systems[i][2:])
+    return out
 
 
 def section_nodes(section, n_per_side: int = PANELS_PER_SIDE) -> np.ndarray:
@@ -155,3 +176,8 @@ def section_nodes(section, n_per_side: int = PANELS_PER_SIDE) -> np.ndarray:
 def section_flow(section, n_per_side: int = PANELS_PER_SIDE) -> SectionFlow:
     """Solved panel model of a unit-chord section."""
     return solve_nodes(section_nodes(section, n_per_side))
+
+
+def section_flows(sections, n_per_side: int = PANELS_PER_SIDE) -> list[SectionFlow]:
+    """Solved panel models of several sections (one batched solve)."""
+    return solve_many([section_nodes(s, n_per_side) for s in sections])

@@ -161,6 +161,24 @@ class Cavitation(_Record):
 
 
 @dataclass
+class Performance(_Record):
+    """Drag, power and lift-to-drag ratio of the trimmed set (first estimates).
+
+    ``points`` at the ``[flight]`` speeds and ``sweep`` from takeoff to first cavitation: per
+    speed the attitude, lift per surface (N), each drag term (N, named), the total (N, kgf),
+    the power (W) and L/D (weight over total drag). ``envelope_kmh``: [takeoff, first
+    cavitation]."""
+
+    points: list
+    sweep: list
+    takeoff_kmh: float
+    first_cavitation_kmh: float
+    envelope_kmh: list
+    sources: list
+    notes: list
+
+
+@dataclass
 class HydroResult(_Record):
     """The set at the reference attitude, its neutral point and (with a ``[flight]``) its trim."""
 
@@ -194,5 +212,6 @@ class HydroResult(_Record):
     lateral: Optional[Lateral] = None
     free_surface: Optional[FreeSurface] = None
     cavitation: Optional[Cavitation] = None
+    performance: Optional[Performance] = None
     notes: list = field(default_factory=list)
     caution: str = ""

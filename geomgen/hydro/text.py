@@ -124,6 +124,8 @@ def format_hydro(r) -> str:
         out += free_surface_lines(r.free_surface)
     if r.cavitation is not None:
         out += cavitation_lines(r.cavitation)
+    if r.performance is not None:
+        out += performance_lines(r.performance)
     out += [""] + [f"Note: {n}" for n in r.notes]
     out += [""] + textwrap.wrap("CAUTION: " + r.caution, 100)
     return "\n".join(out)
@@ -164,4 +166,21 @@ def cavitation_lines(cv) -> list[str]:
         out += table(["km/h"] + names, rows, left=0)
     for n in cv.notes:
         out += textwrap.wrap("Cavitation: " + n, 100)
+    return out
+
+
+def performance_lines(pf) -> list[str]:
+    """Drag, power and L/D at the [flight] speeds, the usable envelope and the drag sources."""
+    out = ["", "Drag and power, trimmed (first estimates):"]
+    if pf.points:
+        terms = list(pf.points[0]["drag_n"])
+        rows = [[_f(p["speed_kmh"], ".1f"), _f(p["attitude_deg"], ".2f")] + [_f(p["drag_n"][k], ".1f") for k in terms]
+                + [_f(p["total_n"], ".1f"), _f(p["total_kgf"], ".2f"), _f(p["power_w"], ".0f"), _f(p["l_over_d"], ".1f")]
+                for p in pf.points]
+        out += table(["km/h", "attitude °"] + [f"{k} N" for k in terms] + ["total N", "kgf", "power W", "L/D"], rows,
+                     left=0)
+    lo, hi = pf.envelope_kmh
+    out.append(f"Usable envelope: from takeoff at {_f(lo, '.1f')} km/h to first cavitation at {_f(hi, '.1f')} km/h "
+               "(estimates: test before relying on either end).")
+    out += [f"Drag: {s}" for s in pf.sources] + pf.notes
     return out

@@ -11,6 +11,11 @@ from pydantic import BaseModel, ConfigDict, Field, StrictBool, model_validator
 #: (tests/test_hydro.py).
 DEFAULT_SPAN_PANELS = 16
 
+#: Section maximum lift coefficient for the takeoff estimate when [flight] gives none:
+#: a moderate value for cambered foil sections of 9-13 % thickness at Reynolds numbers of a
+#: few 10⁵ (common practice, no source).
+DEFAULT_CL_MAX = 1.1
+
 #: Default vortex-lattice panels along the chord (uniform).
 DEFAULT_CHORD_PANELS = 6
 
@@ -32,7 +37,7 @@ class FlightSpec(BaseModel):
         None, gt=1e-7, lt=1e-4, description="kinematic viscosity, m²/s (default: ITTC 2011 table value)")
     cl_max: Optional[float] = Field(
         None, gt=0.1, le=3.0, description="section lift coefficient where the front wing stalls; "
-                                           "gives an estimated takeoff speed")
+                                           "gives the estimated takeoff speed (default 1.1)")
     span_panels: int = Field(DEFAULT_SPAN_PANELS, ge=4, le=100,
                              description="vortex-lattice strips per half span (cosine spaced)")
     chord_panels: int = Field(DEFAULT_CHORD_PANELS, ge=1, le=40,
