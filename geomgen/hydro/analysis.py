@@ -19,7 +19,7 @@ Reference quantities:
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -28,6 +28,7 @@ from ..geometry.figures import PlanformFigures, planform_figures
 from ..spec.flight import DEFAULT_CHORD_PANELS, DEFAULT_CL_MAX, DEFAULT_SPAN_PANELS
 from .cavitation import cavitation
 from .drag import performance
+from .rider import stance
 from .freesurface import LIMITS, check_submerged, compare, water_level
 from .lattice import build_lattice
 from .results import HydroResult, Lateral, Loading, SurfaceHydro
@@ -152,7 +153,7 @@ def pitch_surfaces(models) -> list:
 
 def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels: int | None = None,
             alpha_deg: float = 0.0, cg_x_mm: float | None = None, include_vertical: bool | None = None,
-            vertical_in_pitch: bool | None = None, free_surface: bool = True) -> HydroResult:
+            vertical_in_pitch: bool | None = None, free_surface: bool = True, _lattice=None) -> HydroResult:
     """Vortex-lattice analysis of a foil set: coefficients, neutral point and trim.
 
     Parameters
@@ -193,7 +194,7 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
     vertical = [m for m in models if m not in lifting]
     pitch_models = lifting + (vertical if v_pitch else [])
     ctx = _context(pitch_models, models)
-    lat = build_lattice(pitch_models, ns, nc)
+    lat = _lattice if _lattice is not None else build_lattice(pitch_models, ns, nc)
     water_z, how = water_level(models, fl) if free_surface else (None, "deep water")
     if water_z is not None:
         check_submerged(lat, water_z, "ride_height_mm" if fl.ride_height_mm is not None else "depth_mm")
@@ -270,11 +271,35 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
             result.cavitation = cavitation(flow, ctx, models, w, water_z, fl.mass_kg, start, fl.speeds_kmh)
             result.performance = performance(flow, ctx, models, w, water_z, fl.mass_kg, fl.speeds_kmh,
                                              result.takeoff, result.cavitation.first_kmh, fl.cl_max is not None)
+            result.stance = _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc)
     if water_z is not None:
         deep = analyse(models, fl, span_panels=ns, chord_panels=nc, alpha_deg=alpha_deg, cg_x_mm=cg_x_mm,
-                       include_vertical=False, vertical_in_pitch=v_pitch, free_surface=False)
+                       include_vertical=False, vertical_in_pitch=v_pitch, free_surface=False,
+                       _lattice=replace(lat, water_z=None))
         result.free_surface = compare(pitch_models, result, deep, water_z, how)
     return result
+
+
+def _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc):
+    """Mast move under the rider and the stabilizer shim (see :mod:`geomgen.hydro.rider`)."""
+    i_stab = next((i for i, m in enumerate(pitch_models) if m.role == "stabilizer"), None)
+    stab = pitch_models[i_stab] if i_stab is not None else None
+    speeds = sorted(fl.speeds_kmh)
+    cruise = fl.cruise_kmh if fl.cruise_kmh is not None else speeds[len(speeds) // 2]
+
+    def trim_at(v):
+        return trim_point(flow, ctx, v, fl.mass_kg, w)
+
+    def lift_of(d):
+        if d == 0.0:
+            return trim_at(cruise).lift_n.get(stab.name, math.nan)
+        changed = [m.with_incidence(m.spec.incidence + d) if m is stab else m for m in pitch_models]
+        lat = build_lattice(changed, ns, nc)
+        lat.water_z = water_z
+        c2 = _context(changed, models)
+        return trim_point(Flow.solve(lat), c2, cruise, fl.mass_kg, w).lift_n.get(stab.name, math.nan)
+
+    return stance(fl, trim_at, ctx.mast_x, stab, lift_of)
 
 
 def neutral_point(models, span_panels: int = DEFAULT_SPAN_PANELS, chord_panels: int = DEFAULT_CHORD_PANELS,

@@ -179,6 +179,27 @@ class Performance(_Record):
 
 
 @dataclass
+class Stance(_Record):
+    """Where the rider stands and the stabilizer shim, at the cruise speed (km/h).
+
+    ``mast_move_mm``: how far to slide the mast in its tracks (+ aft) so the net centre of
+    pressure sits under the rider; ``per_speed``: the same at each trim speed. ``shim_deg``:
+    stabilizer incidence change (+ leading edge up) for ``stabilizer_target_kgf``."""
+
+    cruise_kmh: float
+    rider_from_mast_mm: Optional[float] = None
+    mast_move_mm: Optional[float] = None
+    per_speed: list = field(default_factory=list)
+    stabilizer: Optional[str] = None
+    stabilizer_target_kgf: Optional[float] = None
+    stabilizer_lift_now_kgf: Optional[float] = None
+    shim_deg: Optional[float] = None
+    new_incidence_deg: Optional[float] = None
+    stabilizer_lift_reached_kgf: Optional[float] = None
+    notes: list = field(default_factory=list)
+
+
+@dataclass
 class HydroResult(_Record):
     """The set at the reference attitude, its neutral point and (with a ``[flight]``) its trim."""
 
@@ -213,5 +234,6 @@ class HydroResult(_Record):
     free_surface: Optional[FreeSurface] = None
     cavitation: Optional[Cavitation] = None
     performance: Optional[Performance] = None
+    stance: Optional[Stance] = None
     notes: list = field(default_factory=list)
     caution: str = ""

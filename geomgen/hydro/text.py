@@ -126,6 +126,8 @@ def format_hydro(r) -> str:
         out += cavitation_lines(r.cavitation)
     if r.performance is not None:
         out += performance_lines(r.performance)
+    if r.stance is not None:
+        out += stance_lines(r.stance)
     out += [""] + [f"Note: {n}" for n in r.notes]
     out += [""] + textwrap.wrap("CAUTION: " + r.caution, 100)
     return "\n".join(out)
@@ -183,4 +185,24 @@ def performance_lines(pf) -> list[str]:
     out.append(f"Usable envelope: from takeoff at {_f(lo, '.1f')} km/h to first cavitation at {_f(hi, '.1f')} km/h "
                "(estimates: test before relying on either end).")
     out += [f"Drag: {s}" for s in pf.sources] + pf.notes
+    return out
+
+
+def stance_lines(st) -> list[str]:
+    """Mast move under the rider and the stabilizer shim."""
+    out = ["", f"Rider and shim at the cruise speed {st.cruise_kmh:g} km/h (first estimates; try on the water):"]
+    if st.mast_move_mm is not None:
+        d = st.mast_move_mm
+        out.append(f"Rider's weight {abs(st.rider_from_mast_mm):.0f} mm "
+                   f"{'ahead of' if st.rider_from_mast_mm < 0 else 'aft of'} the mast reference: slide the mast "
+                   f"{abs(d) / 10:.1f} cm {'aft' if d > 0 else 'forward'} to put the centre of pressure under it.")
+        rows = [[_f(p["speed_kmh"], ".1f"), _f(p["cp_from_mast_mm"], "+.1f"), _f(p["mast_move_mm"] / 10, "+.1f")]
+                for p in st.per_speed]
+        out += table(["km/h", "cp to mast mm", "mast move cm (+ aft)"], rows, left=0)
+    if st.shim_deg is not None:
+        out.append(f"Stabilizer '{st.stabilizer}': {st.stabilizer_lift_now_kgf:+.2f} kgf now; for "
+                   f"{st.stabilizer_target_kgf:+.2f} kgf shim it {st.shim_deg:+.2f}° (leading edge "
+                   f"{'up' if st.shim_deg > 0 else 'down'}; incidence {st.new_incidence_deg:.2f}°), "
+                   f"reaching {st.stabilizer_lift_reached_kgf:+.2f} kgf.")
+    out += [f"Note: {n}" for n in st.notes]
     return out
