@@ -1,4 +1,5 @@
-"""Time the vortex-lattice neutral point of the demo set against panel count.
+"""Time the vortex-lattice neutral point of the demo set against panel count, and the
+balance with free surface, cavitation and drag (issue 11 targets).
 
 Usage: ``.venv/bin/python bench/bench_hydro.py [SPEC]`` (default specs/demo-foilset.toml, else
 /tmp/foil.toml). Prints, per panel count, the lattice size, the wall time of
@@ -34,6 +35,38 @@ def best_of(fn, n: int = 3) -> float:
     return min(times)
 
 
+def print_water_figures(spec_path: Path) -> None:
+    """Issue 11 targets: the demo balance with free surface and cavitation (<= 2 s on 2 cores),
+    the 2D panel method (<= 20 ms a section), the lattice memory budget."""
+    from geomgen.defaults import LATTICE_MATRICES, LATTICE_MEMORY_BUDGET_BYTES
+    from geomgen.hydro import analyse_spec
+    from geomgen.hydro.panel2d import PANELS_PER_SIDE, section_flow, section_flows
+    from geomgen.sections.naca import naca
+
+    spec = load_spec(spec_path)
+    for k in range(2):
+        t, c = time.perf_counter(), time.process_time()
+        r = analyse_spec(spec)
+        wall, cpu = time.perf_counter() - t, time.process_time() - c
+        print(f"balance analysis (free surface {'on' if r.free_surface else 'off'}, cavitation over "
+              f"{r.cavitation.sections_solved} sections, drag, shim){' (first run)' if k == 0 else ''}: "
+              f"wall {wall:.2f} s, CPU {cpu:.2f} s   target <= 2 s")
+    secs = [naca(d) for d in ("0012", "2412", "4415", "0009", "2410", "6409", "0015", "2413")] * 4
+    t, c = time.perf_counter(), time.process_time()
+    for s in secs[:8]:
+        section_flow(s)
+    one, one_c = (time.perf_counter() - t) / 8, (time.process_time() - c) / 8
+    t, c = time.perf_counter(), time.process_time()
+    section_flows(secs)
+    many, many_c = (time.perf_counter() - t) / len(secs), (time.process_time() - c) / len(secs)
+    print(f"2D panel method, {2 * PANELS_PER_SIDE} panels: alone wall {one * 1000:.1f} ms (CPU {one_c * 1000:.1f}) "
+          f"a section, batched ({len(secs)}) wall {many * 1000:.1f} ms (CPU {many_c * 1000:.1f})   target <= 20 ms")
+    print(f"load average now {os.getloadavg()[0]:.1f} on {os.cpu_count()} cores (wall times grow with it)")
+    n = int((LATTICE_MEMORY_BUDGET_BYTES / (LATTICE_MATRICES * 8)) ** 0.5)
+    print(f"lattice memory budget {LATTICE_MEMORY_BUDGET_BYTES / 2**30:.1f} GiB: up to about {n} panels "
+          f"({LATTICE_MATRICES} N² float64 matrices); larger problems are refused before allocating\n")
+
+
 def main(argv: list[str]) -> int:
     spec_path = Path(argv[1]) if len(argv) > 1 else ROOT / "specs" / "demo-foilset.toml"
     if not spec_path.exists():
@@ -54,6 +87,7 @@ def main(argv: list[str]) -> int:
         t_full = best_of(lambda: analyse(models, spec.flight, span_panels=ns, chord_panels=nc), 1)
         n = sum((2 * ns if m.mirror else ns) * nc for m in models if m.role in ("wing", "stabilizer"))
         rows.append((ns, nc, n, t_np, t_full, x))
+    print_water_figures(spec_path)
     x_ref = rows[-1][-1]
     print(f"{'strips/half':>11} {'chord':>5} {'panels':>6} {'NP s':>7} {'analyse s':>9} {'NP x mm':>9} {'vs finest %MAC':>14}")
     for ns, nc, n, t_np, t_full, x in rows:

@@ -9,13 +9,19 @@ permission failures and Ctrl-C into one line each and an exit code.
 
 from __future__ import annotations
 
+import os
 import sys
 import time
 from pathlib import Path
 
-import click
+# The dense solves here are small (vortex lattice, 2D panels): one BLAS thread runs them
+# faster than two fighting over a shared 2-core machine (bench/bench_hydro.py: the demo
+# balance 0.75 s against 2-6 s under load). Set before numpy loads; a user's setting wins.
+os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
-from . import CAUTION, __version__
+import click  # noqa: E402
+
+from . import CAUTION, __version__  # noqa: E402
 from .errors import CheckFailed, ExportError, GeomgenError, GeometryError, SpecError
 
 #: exit code and the word that starts each message, per kind of failure

@@ -102,3 +102,11 @@ MAX_SPEC_DEPTH = 12
 #: Error lines printed for one refusal; the rest are counted (2 million unknown keys once
 #: printed 2 million lines). Fixing the first few usually fixes many of the rest.
 MAX_ERROR_LINES = 50
+
+# -- hydrodynamics ---------------------------------------------------------------------------
+#: Memory budget of one vortex-lattice solve, bytes (1 GiB): a lattice whose matrices
+#: (influence, wash at the force points, Trefftz wash, the solver's copy, free-surface images:
+#: LATTICE_MATRICES x N² float64) would exceed it is refused before anything is allocated.
+#: The machines this runs on have a few GiB shared between users; 1 GiB is about 4000 panels.
+LATTICE_MEMORY_BUDGET_BYTES = 1 << 30
+LATTICE_MATRICES = 8

@@ -43,3 +43,18 @@ def test_balance_spec_error_exit_2(tmp_path):
     p.write_text(DEMO.read_text().replace("mass_kg = 85.0", "mass_kg = -1"))
     r = CliRunner().invoke(main, ["balance", str(p)])
     assert r.exit_code == 2 and "flight mass_kg" in r.output
+
+
+def test_balance_reports_water_drag_envelope_and_stance(tmp_path):
+    """Issue 11: the free surface, cavitation, drag, envelope and stance reach the text, the
+    JSON and the written report/ files, each with its caution."""
+    r = CliRunner().invoke(main, ["balance", str(DEMO), "-o", str(tmp_path)])
+    assert r.exit_code == 0, r.output
+    for words in ("Free surface", "Limits:", "Cavitation onset (first estimate", "Drag and power, trimmed (first",
+                  "Usable envelope", "slide the mast", "shim it", "CAUTION"):
+        assert words in r.output
+    j = json.loads((tmp_path / "report" / "lakeside-cruiser-balance.json").read_text())
+    assert j["free_surface"]["neutral_point_shift_mm"] is not None
+    assert j["cavitation"]["first_kmh"] > 26.0
+    assert j["performance"]["envelope_kmh"][0] < 14.0 < j["performance"]["envelope_kmh"][1]
+    assert j["stance"]["mast_move_mm"] is not None and j["stance"]["shim_deg"] is not None

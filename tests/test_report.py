@@ -344,7 +344,8 @@ def test_json_is_strict_and_pages_come_from_it_alone(cg_data, cg_files):
     text = cg_files["report/lakeside-cruiser-report.json"].decode()
     assert json.loads(text) == cg_data and "NaN" not in text
     images = {k: cg_files[f"report/lakeside-cruiser-report-{k}.png"] for k in
-              ("top", "side", "spanwise", "stiffness", "sections-front-wing", "sections-stabilizer", "sections-mast")}
+              ("top", "side", "spanwise", "stiffness", "sections-front-wing", "sections-stabilizer", "sections-mast",
+               "envelope")}
     assert to_html(json.loads(text), images).encode() == cg_files["report/lakeside-cruiser-report.html"]
     names = {k: f"lakeside-cruiser-report-{k}.png" for k in images}
     assert to_markdown(json.loads(text), names).encode() == cg_files["report/lakeside-cruiser-report.md"]
@@ -365,6 +366,8 @@ def test_balance_without_a_mast_shows_the_centre_of_pressure_from_the_datum_orig
     from the origin instead of empty mast columns."""
     text = DEMO.read_text()
     text = text[:text.index("# Mast: vertical")] + text[text.index("[flight]"):]
+    # without a mast the ride height has nothing to stand on: give the water level directly
+    text = text.replace("ride_height_mm = 150.0", "depth_mm = 600.0")
     spec = tmp_path / "no-mast.toml"
     spec.write_text(text)
     project = Project(spec, tmp_path / "out")

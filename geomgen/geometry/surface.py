@@ -86,6 +86,12 @@ class SurfaceModel:
         return SurfaceModel(self.spec.model_copy(update={"te_thickness": float(te_mm)}), self.planform,
                             self._sections)
 
+    def with_incidence(self, incidence_deg: float) -> "SurfaceModel":
+        """The same surface set at another incidence (a shim under it), deg; shares the
+        planform and sections."""
+        return SurfaceModel(self.spec.model_copy(update={"incidence": float(incidence_deg)}), self.planform,
+                            self._sections)
+
     def te_too_thick(self, where) -> list[tuple[float, float, float]]:
         """(y, limit mm, thickness at the ramp start mm) where the finished edge is too thick."""
         from .model import _check_trailing_edge

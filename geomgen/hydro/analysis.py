@@ -19,13 +19,17 @@ Reference quantities:
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
 from .. import CAUTION
 from ..geometry.figures import PlanformFigures, planform_figures
-from ..spec.flight import DEFAULT_CHORD_PANELS, DEFAULT_SPAN_PANELS
+from ..spec.flight import DEFAULT_CHORD_PANELS, DEFAULT_CL_MAX, DEFAULT_SPAN_PANELS
+from .cavitation import cavitation
+from .drag import performance
+from .rider import stance
+from .freesurface import LIMITS, check_submerged, compare, water_level
 from .lattice import build_lattice
 from .results import HydroResult, Lateral, Loading, SurfaceHydro
 from .solve import Flow, solve_attitude
@@ -143,13 +147,13 @@ def pitch_surfaces(models) -> list:
 
     lifting = [m for m in models if m.role in PITCH_ROLES and m.orientation == "horizontal"]
     if not lifting:
-        raise SpecError("the balance needs at least one horizontal surface with role 'wing' or 'stabilizer'")
+        raise SpecError("surface: the balance needs at least one horizontal surface with role 'wing' or 'stabilizer'")
     return lifting
 
 
 def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels: int | None = None,
             alpha_deg: float = 0.0, cg_x_mm: float | None = None, include_vertical: bool | None = None,
-            vertical_in_pitch: bool | None = None) -> HydroResult:
+            vertical_in_pitch: bool | None = None, free_surface: bool = True, _lattice=None) -> HydroResult:
     """Vortex-lattice analysis of a foil set: coefficients, neutral point and trim.
 
     Parameters
@@ -172,6 +176,9 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
         Also solve masts and fins and report sideslip derivatives.
     vertical_in_pitch : bool, optional
         Count masts and fins in the pitch balance (default: left out).
+    free_surface : bool
+        Put the still-water surface of ``flight`` (``ride_height_mm`` or ``depth_mm``) in the
+        lattice and compare with deep water; False: deep water.
 
     Returns
     -------
@@ -187,7 +194,11 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
     vertical = [m for m in models if m not in lifting]
     pitch_models = lifting + (vertical if v_pitch else [])
     ctx = _context(pitch_models, models)
-    lat = build_lattice(pitch_models, ns, nc)
+    lat = _lattice if _lattice is not None else build_lattice(pitch_models, ns, nc)
+    water_z, how = water_level(models, fl) if free_surface else (None, "deep water")
+    if water_z is not None:
+        check_submerged(lat, water_z, "ride_height_mm" if fl.ride_height_mm is not None else "depth_mm")
+        lat.water_z = water_z
     flow = Flow.solve(lat)
 
     a = alpha_deg * DEG
@@ -214,6 +225,9 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
         f"a surface sees another's wake through a vortex core of {WAKE_CORE:g} local chord (wake thickness "
         "and displacement); 0.1 chord more or less moves a neutral point about 2 % MAC",
     ]
+    notes.append(f"free surface: {how}; {LIMITS}" if water_z is not None else f"{how}: no free surface")
+    if water_z is not None and inc_v and vertical:
+        notes.append("sideslip figures are for deep water (the mast pierces the surface; no images)")
     result = HydroResult(
         reference=dict(wing=ctx.models[ctx.ref_index].name, area_cm2=ctx.s_ref / 100.0, mac_mm=c, span_mm=b,
                        mac_le_x_mm=f_ref.mac_le_x_mm, mast_x_mm=ctx.mast_x,
@@ -248,12 +262,44 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
     if fl is not None:
         w = resolve_water(fl.fluid, fl.temperature_c, fl.viscosity_m2s)
         result.water, result.mass_kg = w.as_dict(), fl.mass_kg
-        v_to = None
-        if fl.cl_max is not None:
-            result.takeoff = takeoff(flow, ctx, fl.mass_kg, w.density, fl.cl_max)
-            v_to = result.takeoff.speed_ms
+        cl_max = fl.cl_max if fl.cl_max is not None else DEFAULT_CL_MAX
+        result.takeoff = takeoff(flow, ctx, fl.mass_kg, w.density, cl_max)
+        v_to = result.takeoff.speed_ms
         result.trim = [trim_point(flow, ctx, v, fl.mass_kg, w, cg, v_to) for v in fl.speeds_kmh]
+        if free_surface:  # not for the deep-water twin of a comparison
+            start = v_to if v_to and math.isfinite(v_to) else min(fl.speeds_kmh) / 3.6
+            result.cavitation = cavitation(flow, ctx, models, w, water_z, fl.mass_kg, start, fl.speeds_kmh)
+            result.performance = performance(flow, ctx, models, w, water_z, fl.mass_kg, fl.speeds_kmh,
+                                             result.takeoff, result.cavitation.first_kmh, fl.cl_max is not None)
+            result.stance = _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc)
+    if water_z is not None:
+        deep = analyse(models, fl, span_panels=ns, chord_panels=nc, alpha_deg=alpha_deg, cg_x_mm=cg_x_mm,
+                       include_vertical=False, vertical_in_pitch=v_pitch, free_surface=False,
+                       _lattice=replace(lat, water_z=None))
+        result.free_surface = compare(pitch_models, result, deep, water_z, how)
     return result
+
+
+def _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc):
+    """Mast move under the rider and the stabilizer shim (see :mod:`geomgen.hydro.rider`)."""
+    i_stab = next((i for i, m in enumerate(pitch_models) if m.role == "stabilizer"), None)
+    stab = pitch_models[i_stab] if i_stab is not None else None
+    speeds = sorted(fl.speeds_kmh)
+    cruise = fl.cruise_kmh if fl.cruise_kmh is not None else speeds[len(speeds) // 2]
+
+    def trim_at(v):
+        return trim_point(flow, ctx, v, fl.mass_kg, w)
+
+    def lift_of(d):
+        if d == 0.0:
+            return trim_at(cruise).lift_n.get(stab.name, math.nan)
+        changed = [m.with_incidence(m.spec.incidence + d) if m is stab else m for m in pitch_models]
+        lat = build_lattice(changed, ns, nc)
+        lat.water_z = water_z
+        c2 = _context(changed, models)
+        return trim_point(Flow.solve(lat), c2, cruise, fl.mass_kg, w).lift_n.get(stab.name, math.nan)
+
+    return stance(fl, trim_at, ctx.mast_x, stab, lift_of)
 
 
 def neutral_point(models, span_panels: int = DEFAULT_SPAN_PANELS, chord_panels: int = DEFAULT_CHORD_PANELS,
@@ -288,7 +334,7 @@ def analyse_spec(spec, **kwargs) -> HydroResult:
         return analyse(models, spec.flight, **kwargs)
     except SpecError as exc:
         src = getattr(spec, "_source", "<spec>")
-        raise SpecError([f"{src}: surface: {p}" for p in exc.problems]) from None
+        raise SpecError([f"{src}: {p}" for p in exc.problems]) from None
 
 
 def balance_of(project, **kwargs) -> HydroResult:
@@ -302,6 +348,6 @@ def balance_of(project, **kwargs) -> HydroResult:
         try:
             return analyse(project.models, project.spec.flight, **kwargs)
         except SpecError as exc:
-            raise SpecError([f"{project.source}: surface: {p}" for p in exc.problems]) from None
+            raise SpecError([f"{project.source}: {p}" for p in exc.problems]) from None
 
     return project.memo(("hydro.balance", tuple(sorted(kwargs.items()))), solve)

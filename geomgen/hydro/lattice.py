@@ -28,6 +28,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .. import defaults
+
 #: Chord-fraction step of the finite difference for the camber-surface tangent.
 TANGENT_STEP = 1e-3
 
@@ -100,6 +102,9 @@ class Lattice:
     A_te: np.ndarray = None
     B_te: np.ndarray = None
     """(N, 3) the strip edges' trailing-edge points, where the free legs start along +x."""
+    water_z: float | None = None
+    """Datum z of the still-water surface, mm; None: deep water (no images). See
+    :func:`image_lattice`."""
 
     @property
     def n(self) -> int:
@@ -180,6 +185,33 @@ def surface_panels(model, n_span: int, n_chord: int) -> dict:
                 strip_chord=np.asarray(model.planform("chord", ym), float), n_strips=s)
 
 
+def panel_count(models, span_panels: int, chord_panels: int) -> int:
+    """Panels of the lattice :func:`build_lattice` would make (nothing is built)."""
+    return sum((2 * span_panels if m.mirror else span_panels) * chord_panels for m in models)
+
+
+def memory_needed(n_panels: int) -> int:
+    """Bytes of the matrices of a lattice of ``n_panels`` (``defaults.LATTICE_MATRICES`` N² float64)."""
+    return defaults.LATTICE_MATRICES * 8 * n_panels * n_panels
+
+
+def check_memory(models, span_panels: int, chord_panels: int,
+                 budget: int = defaults.LATTICE_MEMORY_BUDGET_BYTES) -> None:
+    """Refuse (SpecError naming the [flight] panel counts) a lattice over the memory budget,
+    before anything is allocated."""
+    from ..errors import SpecError
+
+    n = panel_count(models, span_panels, chord_panels)
+    need = memory_needed(n)
+    if need > budget:
+        fit = int((budget / (defaults.LATTICE_MATRICES * 8)) ** 0.5)
+        raise SpecError(
+            f"flight.span_panels, flight.chord_panels: {span_panels} strips per half span x {chord_panels} along "
+            f"the chord make {n} panels over {len(models)} surfaces, whose lattice matrices need "
+            f"{need / 2**30:.1f} GiB, over the {budget / 2**30:.1f} GiB budget (about {fit} panels); "
+            f"lower the counts (the defaults converge the neutral point to 0.2 % MAC)")
+
+
 def build_lattice(models, span_panels: int, chord_panels: int) -> Lattice:
     """Lattice of all ``models`` together.
 
@@ -198,6 +230,7 @@ def build_lattice(models, span_panels: int, chord_panels: int) -> Lattice:
     """
     if span_panels < 2 or chord_panels < 1:
         raise ValueError("need span_panels >= 2 and chord_panels >= 1")
+    check_memory(models, span_panels, chord_panels)
     parts = [surface_panels(m, span_panels, chord_panels) for m in models]
     off = np.cumsum([0] + [p["n_strips"] for p in parts])
     cat = lambda k: np.concatenate([p[k] for p in parts])  # noqa: E731
@@ -221,3 +254,34 @@ def build_lattice(models, span_panels: int, chord_panels: int) -> Lattice:
     lat.core = cross_core(lat)
     lat.edge_width, lat.edge_core = edge_cores(lat)
     return lat
+
+
+#: Offset added to the surface index of image panels: every real point sees an image through
+#: the cross-surface core (never the same-surface kernel).
+IMAGE_SURFACE = 1000
+
+
+def image_lattice(lat: Lattice) -> Lattice:
+    """The free surface's image of ``lat``: every vortex reflected in the plane z = ``water_z``.
+
+    High-Froude-number limit of the linearised free-surface condition: the perturbation
+    potential vanishes on the still surface (φ = 0, no wave making). The image that meets it
+    is the reflected horseshoe with the *same* circulation along the reflected path, the
+    opposite of the rigid-wall (ground-effect) image, which reflects with −Γ. Its vorticity is
+    +Mω (M the reflection) where the wall's is −Mω, so in a 2D cut the image vortex turns the
+    same way as the foil's: the free surface acts like a biplane partner and takes lift away,
+    where a wall adds it.
+    """
+    zw = float(lat.water_z)
+
+    def refl(p):
+        q = np.array(p, float, copy=True)
+        q[..., 2] = 2.0 * zw - q[..., 2]
+        return q
+
+    from dataclasses import replace
+
+    return replace(lat, A=refl(lat.A), B=refl(lat.B), colloc=refl(lat.colloc), edge_from=refl(lat.edge_from),
+                   edge_to=refl(lat.edge_to), A_te=refl(lat.A_te), B_te=refl(lat.B_te),
+                   surface=lat.surface + IMAGE_SURFACE, edge_surface=lat.edge_surface + IMAGE_SURFACE,
+                   water_z=None)

@@ -125,6 +125,81 @@ class Lateral(_Record):
 
 
 @dataclass
+class FreeSurface(_Record):
+    """The still-water surface and what it changes against deep water (same set, same speeds).
+
+    ``surfaces``: per surface its depth (root quarter chord and shallowest point, mm; root
+    depth over its MAC), lift-slope ratio to deep water and CL change at the reference
+    attitude. ``trim``: per speed the change of attitude (deg), of each surface's lift (N),
+    of the centre of pressure (mm, + aft) and of the induced drag (N)."""
+
+    water_z_mm: float
+    how: str
+    surfaces: list
+    neutral_point_shift_mm: float
+    neutral_point_shift_pct_mac: float
+    deep_neutral_point_x_mm: float
+    trim: list
+    limits: str
+
+
+@dataclass
+class Cavitation(_Record):
+    """Cavitation onset per surface (lifting surfaces trimmed, masts and fins at zero lift).
+
+    ``surfaces``: per surface the onset speed (m/s, km/h; None if none up to the search's
+    end), where (span y mm, chord x/c, side), the strip's cl and Cp,min there and its depth
+    (mm). ``margin_at_speeds``: per trim speed and lifting surface, σ + Cp,min of the worst
+    strip (positive: no cavitation)."""
+
+    surfaces: list
+    first_kmh: float
+    first_surface: Optional[str]
+    margin_at_speeds: list
+    sections_solved: int
+    notes: list
+
+
+@dataclass
+class Performance(_Record):
+    """Drag, power and lift-to-drag ratio of the trimmed set (first estimates).
+
+    ``points`` at the ``[flight]`` speeds and ``sweep`` from takeoff to first cavitation: per
+    speed the attitude, lift per surface (N), each drag term (N, named), the total (N, kgf),
+    the power (W) and L/D (weight over total drag). ``envelope_kmh``: [takeoff, first
+    cavitation]."""
+
+    points: list
+    sweep: list
+    takeoff_kmh: float
+    first_cavitation_kmh: float
+    envelope_kmh: list
+    sources: list
+    notes: list
+
+
+@dataclass
+class Stance(_Record):
+    """Where the rider stands and the stabilizer shim, at the cruise speed (km/h).
+
+    ``mast_move_mm``: how far to slide the mast in its tracks (+ aft) so the net centre of
+    pressure sits under the rider; ``per_speed``: the same at each trim speed. ``shim_deg``:
+    stabilizer incidence change (+ leading edge up) for ``stabilizer_target_kgf``."""
+
+    cruise_kmh: float
+    rider_from_mast_mm: Optional[float] = None
+    mast_move_mm: Optional[float] = None
+    per_speed: list = field(default_factory=list)
+    stabilizer: Optional[str] = None
+    stabilizer_target_kgf: Optional[float] = None
+    stabilizer_lift_now_kgf: Optional[float] = None
+    shim_deg: Optional[float] = None
+    new_incidence_deg: Optional[float] = None
+    stabilizer_lift_reached_kgf: Optional[float] = None
+    notes: list = field(default_factory=list)
+
+
+@dataclass
 class HydroResult(_Record):
     """The set at the reference attitude, its neutral point and (with a ``[flight]``) its trim."""
 
@@ -156,5 +231,9 @@ class HydroResult(_Record):
     trim: list = field(default_factory=list)
     takeoff: Optional[Takeoff] = None
     lateral: Optional[Lateral] = None
+    free_surface: Optional[FreeSurface] = None
+    cavitation: Optional[Cavitation] = None
+    performance: Optional[Performance] = None
+    stance: Optional[Stance] = None
     notes: list = field(default_factory=list)
     caution: str = ""

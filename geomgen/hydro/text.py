@@ -120,6 +120,89 @@ def format_hydro(r) -> str:
                     f"Clβ {la.roll_moment_per_deg:.5f} /deg, Cnβ {la.yaw_moment_per_deg:.5f} /deg "
                     "(right-hand about datum x and z, front-wing S and span)"]
         out += ["  " + ", ".join(f"{k} {v:.5f}" for k, v in la.side_force_slope_per_deg.items()) + " (CYβ share /deg)"]
+    if r.free_surface is not None:
+        out += free_surface_lines(r.free_surface)
+    if r.cavitation is not None:
+        out += cavitation_lines(r.cavitation)
+    if r.performance is not None:
+        out += performance_lines(r.performance)
+    if r.stance is not None:
+        out += stance_lines(r.stance)
     out += [""] + [f"Note: {n}" for n in r.notes]
     out += [""] + textwrap.wrap("CAUTION: " + r.caution, 100)
     return "\n".join(out)
+
+
+def free_surface_lines(fs) -> list[str]:
+    """The free-surface comparison against deep water, with the model's limits."""
+    out = ["", f"Free surface: still water at z = {fs.water_z_mm:.0f} mm ({fs.how}); against deep water:"]
+    rows = [[s["name"], _f(s["depth_root_mm"], ".0f"), _f(s["depth_min_mm"], ".0f"), _f(s["depth_over_mac"], ".2f"),
+             _f(s["lift_slope_change_pct"], "+.2f")] for s in fs.surfaces]
+    out += table(["surface", "depth root mm", "depth min mm", "depth/MAC", "CLα change %"], rows)
+    out.append(f"Neutral point moves {fs.neutral_point_shift_mm:+.1f} mm ({fs.neutral_point_shift_pct_mac:+.2f} % MAC; "
+               f"+ aft) from {fs.deep_neutral_point_x_mm:.1f} mm in deep water")
+    if fs.trim:
+        names = list(fs.trim[0]["lift_change_n"])
+        rows = [[_f(t["speed_kmh"], ".1f"), _f(t["froude_depth"], ".2f"), _f(t["attitude_change_deg"], "+.2f")]
+                + [_f(t["lift_change_n"][n], "+.1f") for n in names]
+                + [_f(t["cp_shift_mm"], "+.1f"), _f(t["induced_drag_change_n"], "+.2f")] for t in fs.trim]
+        out += table(["km/h", "V/√(g·h)", "attitude Δ°"] + [f"{n} ΔL N" for n in names] + ["cp Δ mm", "Di Δ N"],
+                     rows, left=0)
+    out += textwrap.wrap("Limits: " + fs.limits + ".", 100)
+    return out
+
+
+def cavitation_lines(cv) -> list[str]:
+    """Cavitation onset per surface, the margins at the trim speeds, and the method's limits."""
+    out = ["", "Cavitation onset (first estimate; trimmed, lift = weight):"]
+    rows = [[s["name"], _f(s["onset_kmh"], ".1f"), _f(s["onset_ms"], ".2f"), _f(s["y_mm"], ".0f"),
+             _f(s["x_over_c"], ".3f"), s["side"], _f(s["cl"], ".3f"), _f(s["cp_min"], ".3f"), _f(s["depth_mm"], ".0f"),
+             s["where"]] for s in cv.surfaces]
+    out += table(["surface", "km/h", "m/s", "y mm", "x/c", "side", "cl", "Cp,min", "depth mm", "where"], rows)
+    if cv.first_surface:
+        out.append(f"First cavitation: '{cv.first_surface}' at about {cv.first_kmh:.0f} km/h.")
+    if cv.margin_at_speeds:
+        names = [k for k in cv.margin_at_speeds[0] if k != "speed_kmh"]
+        rows = [[_f(m["speed_kmh"], ".1f")] + [_f(m[n], ".2f") for n in names] for m in cv.margin_at_speeds]
+        out += ["Margin σ + Cp,min of the worst strip (positive: no cavitation):"]
+        out += table(["km/h"] + names, rows, left=0)
+    for n in cv.notes:
+        out += textwrap.wrap("Cavitation: " + n, 100)
+    return out
+
+
+def performance_lines(pf) -> list[str]:
+    """Drag, power and L/D at the [flight] speeds, the usable envelope and the drag sources."""
+    out = ["", "Drag and power, trimmed (first estimates):"]
+    if pf.points:
+        terms = list(pf.points[0]["drag_n"])
+        rows = [[_f(p["speed_kmh"], ".1f"), _f(p["attitude_deg"], ".2f")] + [_f(p["drag_n"][k], ".1f") for k in terms]
+                + [_f(p["total_n"], ".1f"), _f(p["total_kgf"], ".2f"), _f(p["power_w"], ".0f"), _f(p["l_over_d"], ".1f")]
+                for p in pf.points]
+        out += table(["km/h", "attitude °"] + [f"{k} N" for k in terms] + ["total N", "kgf", "power W", "L/D"], rows,
+                     left=0)
+    lo, hi = pf.envelope_kmh
+    out.append(f"Usable envelope: from takeoff at {_f(lo, '.1f')} km/h to first cavitation at {_f(hi, '.1f')} km/h "
+               "(estimates: test before relying on either end).")
+    out += [f"Drag: {s}" for s in pf.sources] + pf.notes
+    return out
+
+
+def stance_lines(st) -> list[str]:
+    """Mast move under the rider and the stabilizer shim."""
+    out = ["", f"Rider and shim at the cruise speed {st.cruise_kmh:g} km/h (first estimates; try on the water):"]
+    if st.mast_move_mm is not None:
+        d = st.mast_move_mm
+        out.append(f"Rider's weight {abs(st.rider_from_mast_mm):.0f} mm "
+                   f"{'ahead of' if st.rider_from_mast_mm < 0 else 'aft of'} the mast reference: slide the mast "
+                   f"{abs(d) / 10:.1f} cm {'aft' if d > 0 else 'forward'} to put the centre of pressure under it.")
+        rows = [[_f(p["speed_kmh"], ".1f"), _f(p["cp_from_mast_mm"], "+.1f"), _f(p["mast_move_mm"] / 10, "+.1f")]
+                for p in st.per_speed]
+        out += table(["km/h", "cp to mast mm", "mast move cm (+ aft)"], rows, left=0)
+    if st.shim_deg is not None:
+        out.append(f"Stabilizer '{st.stabilizer}': {st.stabilizer_lift_now_kgf:+.2f} kgf now; for "
+                   f"{st.stabilizer_target_kgf:+.2f} kgf shim it {st.shim_deg:+.2f}° (leading edge "
+                   f"{'up' if st.shim_deg > 0 else 'down'}; incidence {st.new_incidence_deg:.2f}°), "
+                   f"reaching {st.stabilizer_lift_reached_kgf:+.2f} kgf.")
+    out += [f"Note: {n}" for n in st.notes]
+    return out

@@ -179,9 +179,19 @@ def influence(lat, P, surf_p, normals=None) -> np.ndarray:
     n, m = len(P), lat.n
     rows = max(1, BLOCK // max(m, 1))
     out = np.empty((n, m) if normals is not None else (3, n, m))
+    image = None
+    if lat.water_z is not None:  # free surface: each horseshoe with its reflected image
+        from .lattice import image_lattice
+
+        image = image_lattice(lat)
     for i in range(0, n, rows):
         sl = slice(i, i + rows)
         vx, vy, vz = horseshoe_block(P[sl], surf_p[sl], lat)
+        if image is not None:
+            ix, iy, iz = horseshoe_block(P[sl], surf_p[sl], image)
+            vx += ix
+            vy += iy
+            vz += iz
         if normals is not None:
             nn = normals[sl]
             out[sl] = vx * nn[:, 0:1] + vy * nn[:, 1:2] + vz * nn[:, 2:3]
@@ -223,5 +233,10 @@ def trefftz_matrix(lat) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         for src, sign in ((b, 1.0), (a, -1.0)):
             dy, dz = my - src[None, :, 0], mz - src[None, :, 1]
             w += sign * (dy * nz - dz * ny) * _smooth(dy * dy + dz * dz, core2)
+        if lat.water_z is not None:  # free-surface images: same sign, reflected in z = water_z
+            icore2 = (lat.core[None, :] ** 2) * np.ones((len(my), 1))
+            for src, sign in ((b, 1.0), (a, -1.0)):
+                dy, dz = my - src[None, :, 0], mz - (2.0 * lat.water_z - src[None, :, 1])
+                w += sign * (dy * nz - dz * ny) * _smooth(dy * dy + dz * dz, icore2)
         T[sl] = w / (2.0 * np.pi)
     return T, ds, n2

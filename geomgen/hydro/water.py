@@ -22,6 +22,15 @@ ITTC_2011 = {
 }
 
 
+#: Standard atmospheric pressure at the surface, Pa (ISO 2533 standard atmosphere).
+P_ATM = 101325.0
+
+#: Saturated vapour pressure of water, Pa, by temperature °C: ITTC 7.5-02-01-03 (2011) fresh
+#: water (from memory; the steam-table values 1.705 and 2.339 kPa). Seawater takes the same
+#: values: salt lowers them about 2 %, so cavitation is predicted marginally early.
+VAPOUR_PA = {15: 1705.0, 20: 2339.0}
+
+
 @dataclass(frozen=True)
 class Water:
     """Fluid properties used by the trim.
@@ -38,6 +47,8 @@ class Water:
         °C the table values are for.
     source : str
         Where the numbers come from, in words.
+    vapour_pa : float
+        Saturated vapour pressure, Pa (:data:`VAPOUR_PA`).
     """
 
     name: str
@@ -45,6 +56,7 @@ class Water:
     viscosity: float
     temperature_c: float
     source: str
+    vapour_pa: float = VAPOUR_PA[15]
 
     def as_dict(self) -> dict:
         return asdict(self)
@@ -76,10 +88,10 @@ def water(fluid="seawater", temperature_c: int = 15, viscosity: float | None = N
         rho, nu = ITTC_2011[(fluid, t)]
         if viscosity is not None:
             nu, src = float(viscosity), f"density {src}, viscosity given"
-        return Water(fluid, rho, nu, t, f"{src}, {t} °C")
+        return Water(fluid, rho, nu, t, f"{src}, {t} °C", VAPOUR_PA[t])
     rho = float(fluid)
     if viscosity is not None:
-        return Water("density given", rho, float(viscosity), t, "density and viscosity given")
+        return Water("density given", rho, float(viscosity), t, "density and viscosity given", VAPOUR_PA[t])
     near = min(("seawater", "freshwater"), key=lambda k: abs(ITTC_2011[(k, t)][0] - rho))
     return Water("density given", rho, ITTC_2011[(near, t)][1], t,
-                 f"density given; viscosity of {near} at {t} °C, {src}")
+                 f"density given; viscosity of {near} at {t} °C, {src}", VAPOUR_PA[t])

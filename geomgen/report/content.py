@@ -162,7 +162,63 @@ def _balance(data) -> list:
                          " km/h (", V(("balance", "takeoff", "speed_ms"), ".2f"), " m/s) at attitude ",
                          V(("balance", "takeoff", "attitude_deg"), "+.2f"), " °, where the front wing's most loaded "
                          "strip reaches a section lift coefficient of ", V(("balance", "takeoff", "cl_max"), ".2f"), "."]))
+    out += _water(b)
     out.append(Bullets([[V(("balance", "notes", i), "str")] for i in range(len(b["notes"]))], "note"))
+    return out
+
+
+def _water(b) -> list:
+    """Free surface, cavitation, drag and envelope, and where the rider stands (issue 11)."""
+    out = []
+    fs, cv, pf, st = b.get("free_surface"), b.get("cavitation"), b.get("performance"), b.get("stance")
+    if fs:
+        F = lambda *k, f=".1f": V(("balance", "free_surface") + k, f)  # noqa: E731
+        out.append(Heading(3, ["Free surface"], "free-surface"))
+        out.append(Para(["Still water at datum z ", F("water_z_mm", f=".0f"), " mm (", F("how", f="str"),
+                         "). Against deep water the neutral point moves ", F("neutral_point_shift_mm", f="+.1f"),
+                         " mm (", F("neutral_point_shift_pct_mac", f="+.2f"), " % MAC, positive aft)."]))
+        out.append(Bullets([[F("surfaces", i, "name", f="str"), ": root depth ", F("surfaces", i, "depth_root_mm", f=".0f"),
+                             " mm, lift slope ", F("surfaces", i, "lift_slope_change_pct", f="+.2f"),
+                             " % against deep water"] for i in range(len(fs["surfaces"]))]))
+        out.append(Para(["Limits: ", F("limits", f="str"), "."], "note"))
+    if cv:
+        C = lambda *k, f=".1f": V(("balance", "cavitation") + k, f)  # noqa: E731
+        out.append(Heading(3, ["Cavitation"], "cavitation"))
+        rows = [[[C("surfaces", i, "name", f="str")], [C("surfaces", i, "onset_kmh")], [C("surfaces", i, "y_mm", f=".0f")],
+                 [C("surfaces", i, "x_over_c", f=".3f")], [C("surfaces", i, "side", f="str")],
+                 [C("surfaces", i, "cp_min", f=".3f")], [C("surfaces", i, "depth_mm", f=".0f")]]
+                for i in range(len(cv["surfaces"]))]
+        out.append(Table([["surface"], ["onset km/h"], ["span y mm"], ["chord x/c"], ["side"], ["Cp,min"],
+                          ["depth mm"]], rows, numeric={1, 2, 3, 5, 6}, caption=[
+            "Speed at which each surface first cavitates, trimmed (first estimate: tip vortices, roughness and "
+            "nuclei can bring it earlier). ", C("notes", 0, f="str"), "; ", C("notes", 1, f="str"), "."]))
+    if pf:
+        P = lambda *k, f=".1f": V(("balance", "performance") + k, f)  # noqa: E731
+        out.append(Heading(3, ["Drag, power and the usable envelope"], "drag"))
+        rows = [[[P("points", i, "speed_kmh")], [P("points", i, "total_n")], [P("points", i, "total_kgf", f=".2f")],
+                 [P("points", i, "power_w", f=".0f")], [P("points", i, "l_over_d")]] for i in range(len(pf["points"]))]
+        out.append(Table([["speed km/h"], ["drag N"], ["drag kgf"], ["power W"], ["lift/drag"]], rows,
+                         numeric={0, 1, 2, 3, 4}, caption=["Total drag of the trimmed set (first estimates). "]))
+        out.append(Para(["Usable envelope: from the takeoff estimate at ", P("envelope_kmh", 0), " km/h to first "
+                         "cavitation at ", P("envelope_kmh", 1), " km/h. These are estimates: test before relying "
+                         "on either end."], "caution"))
+        out.append(Figure("envelope", "lift split, drag and envelope against speed",
+                          ["Lift of each surface and total drag against speed, trimmed, from takeoff to first "
+                           "cavitation (shaded: the usable envelope)."]))
+        out.append(Bullets([[P("sources", i, f="str")] for i in range(len(pf["sources"]))]
+                           + [[P("notes", i, f="str")] for i in range(len(pf["notes"]))], "note"))
+    if st:
+        S = lambda *k, f=".1f": V(("balance", "stance") + k, f)  # noqa: E731
+        out.append(Heading(3, ["Where the rider stands"], "stance"))
+        if st.get("mast_move_mm") is not None:
+            out.append(Para(["At the cruise speed of ", S("cruise_kmh", f="g"), " km/h, with the rider's weight at ",
+                             S("rider_from_mast_mm", f="+.0f"), " mm from the mast reference, slide the mast ",
+                             S("mast_move_mm", f="+.0f"), " mm (positive aft) to put the centre of pressure under "
+                             "the rider."]))
+        if st.get("shim_deg") is not None:
+            out.append(Para(["Stabilizer shim for ", S("stabilizer_target_kgf", f="+.2f"), " kgf at cruise: ",
+                             S("shim_deg", f="+.2f"), " ° (incidence ", S("new_incidence_deg", f=".2f"),
+                             " °; now ", S("stabilizer_lift_now_kgf", f="+.2f"), " kgf)."]))
     return out
 
 

@@ -223,6 +223,8 @@ def _balance(hyd: dict | None) -> dict | None:
         "mass_kg": hyd.get("mass_kg"), "water": water.get("name"), "density_kg_m3": water.get("density"),
         "pitch_surfaces": pitch, "panels": hyd["panels"]["total"], "trim": trim,
         "takeoff": hyd.get("takeoff"), "notes": hyd.get("notes", []),
+        "free_surface": hyd.get("free_surface"), "cavitation": hyd.get("cavitation"),
+        "performance": hyd.get("performance"), "stance": hyd.get("stance"),
     }
 
 

@@ -330,6 +330,33 @@ def stiffness(data) -> bytes:
     return _png(fig)
 
 
+def envelope(data) -> bytes:
+    """Lift of each surface and total drag against speed, the usable envelope shaded."""
+    b = data["balance"]
+    pf = b["performance"]
+    roles = {s["name"]: s["role"] for s in data["surfaces"]}
+    sw = pf["sweep"]
+    v = [p["speed_kmh"] for p in sw]
+    fig, (a1, a2) = plt.subplots(2, 1, figsize=(8.0, 6.5), sharex=True)
+    for name in sw[0]["lift_n"] if sw else []:
+        _line(a1, v, [p["lift_n"][name] for p in sw], roles.get(name, "wing"), label=f"{name} lift")
+    a1.axhline(0.0, color="#bbbbbb", lw=0.6)
+    a1.set_ylabel("lift, N (negative: down)")
+    _line(a2, v, [p["total_n"] for p in sw], "wing", label="total drag")
+    _line(a2, v, [p["drag_n"].get("induced") for p in sw], "quarter_chord", label="induced drag")
+    a2.set_ylabel("drag, N")
+    a2.set_xlabel("speed, km/h")
+    lo, hi = pf["envelope_kmh"]
+    for a in (a1, a2):
+        if lo is not None and hi is not None:
+            a.axvspan(lo, hi, color="#e8f3e8", zorder=0)
+        a.grid(True, color="#e4e4e4", lw=0.5)
+        a.legend(fontsize=8)
+    a1.set_title(f"Trimmed, takeoff {format_value(lo, '.1f')} km/h to first cavitation {format_value(hi, '.1f')} km/h "
+                 "(first estimates)", fontsize=9)
+    return _png(fig)
+
+
 def render_all(data, progress=None) -> dict:
     """Image key -> PNG bytes, for every figure the report's blocks name."""
     say = progress or (lambda m: None)
@@ -339,4 +366,6 @@ def render_all(data, progress=None) -> dict:
         out[f"sections-{s['name']}"] = sections(data, s)
     out["spanwise"] = spanwise(data)
     out["stiffness"] = stiffness(data)
+    if data["balance"] is not None and data["balance"].get("performance") and data["balance"]["performance"]["sweep"]:
+        out["envelope"] = envelope(data)
     return out

@@ -4,12 +4,17 @@ from __future__ import annotations
 
 from typing import Annotated, Literal, Optional, Union
 
-from pydantic import BaseModel, ConfigDict, Field, StrictBool
+from pydantic import BaseModel, ConfigDict, Field, StrictBool, model_validator
 
 #: Default vortex-lattice strips per half span (cosine spaced). At these counts doubling
 #: both counts moves the neutral point of the demo set by well under 0.2 % MAC
 #: (tests/test_hydro.py).
 DEFAULT_SPAN_PANELS = 16
+
+#: Section maximum lift coefficient for the takeoff estimate when [flight] gives none:
+#: a moderate value for cambered foil sections of 9-13 % thickness at Reynolds numbers of a
+#: few 10⁵ (common practice, no source).
+DEFAULT_CL_MAX = 1.1
 
 #: Default vortex-lattice panels along the chord (uniform).
 DEFAULT_CHORD_PANELS = 6
@@ -32,7 +37,7 @@ class FlightSpec(BaseModel):
         None, gt=1e-7, lt=1e-4, description="kinematic viscosity, m²/s (default: ITTC 2011 table value)")
     cl_max: Optional[float] = Field(
         None, gt=0.1, le=3.0, description="section lift coefficient where the front wing stalls; "
-                                           "gives an estimated takeoff speed")
+                                           "gives the estimated takeoff speed (default 1.1)")
     span_panels: int = Field(DEFAULT_SPAN_PANELS, ge=4, le=100,
                              description="vortex-lattice strips per half span (cosine spaced)")
     chord_panels: int = Field(DEFAULT_CHORD_PANELS, ge=1, le=40,
@@ -41,3 +46,24 @@ class FlightSpec(BaseModel):
         False, description="put masts and fins in the lattice and report sideslip (side force)")
     vertical_in_pitch: StrictBool = Field(
         False, description="count masts and fins in the pitch balance as well (normally left out)")
+    ride_height_mm: Optional[float] = Field(
+        None, ge=0.0, le=5000.0, description="height of the board's underside above the still water, mm; the "
+                                             "board sits on the top of the mast (free surface from the mast)")
+    depth_mm: Optional[float] = Field(
+        None, ge=0.0, le=1.0e6, description="depth of the datum origin below the still water, mm (free surface "
+                                            "given directly; for a set without a mast)")
+    cruise_kmh: Optional[float] = Field(
+        None, gt=0.0, le=200.0, description="cruise speed for where the rider stands and the stabilizer shim, "
+                                            "km/h (default: the middle of speeds_kmh)")
+    rider_from_mast_mm: Optional[float] = Field(
+        None, ge=-2000.0, le=2000.0, description="where the rider's weight acts, mm along datum x from the mast "
+                                                 "reference (negative: ahead of the mast)")
+    stabilizer_lift_kgf: Optional[float] = Field(
+        None, ge=-500.0, le=500.0, description="stabilizer lift wanted at the cruise speed, kgf (negative: "
+                                               "down-force); the balance solves the shim that gives it")
+
+    @model_validator(mode="after")
+    def _one_water_level(self):
+        if self.ride_height_mm is not None and self.depth_mm is not None:
+            raise ValueError("give ride_height_mm or depth_mm, not both (each sets the still-water level)")
+        return self

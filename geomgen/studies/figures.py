@@ -79,9 +79,12 @@ def variant_figures(text: str, source: str = "<variant>", *, cruise_kmh: float |
     out.update(neutral_point_x_mm=res.neutral_point_x_mm, neutral_point_from_mast_mm=res.neutral_point_from_mast_mm,
                static_margin_pct=res.static_margin_pct,
                takeoff_kmh=res.takeoff.speed_kmh if res.takeoff is not None else None)
-    cav = getattr(res, "cavitation", None)  # present when the analysis predicts cavitation onset
-    if cav is not None:
-        out["cavitation_kmh"] = _first(cav, "onset_kmh", "speed_kmh")
+    if res.cavitation is not None and res.cavitation.first_kmh is not None:
+        out["cavitation_kmh"] = res.cavitation.first_kmh
+    perf = res.performance
+    if perf is not None and perf.takeoff_kmh is not None and math.isfinite(perf.takeoff_kmh):
+        out["takeoff_kmh"] = perf.takeoff_kmh
+    point = next((p for p in (perf.points if perf is not None else []) if abs(p["speed_kmh"] - v) < 1e-9), None)
     if t is None:
         return out
     weight = sum(t.lift_n.values())
@@ -91,20 +94,11 @@ def variant_figures(text: str, source: str = "<variant>", *, cruise_kmh: float |
     out["stab_lift_pct_weight"] = 100.0 * sum(stab) / weight if stab and weight else None
     out["attitude_deg"] = t.attitude_deg
     out["induced_drag_n"] = t.induced_drag_n
-    total = _first(t, "total_drag_n", "drag_n")
-    out["drag_n"] = total
-    drag = total if total is not None else t.induced_drag_n
-    out["lift_to_drag"] = weight / drag if drag and drag > 0 else None
+    if point is not None:  # profile (ITTC-1957 line, form factor), induced, mast spray and junction
+        out["drag_n"] = point["total_n"]
+        out["lift_to_drag"] = point["l_over_d"]
     out["cp_from_mast_mm"] = t.cp_from_mast_mm if t.cp_from_mast_mm is not None else t.cp_x_mm
     return {k: (None if isinstance(x, float) and not math.isfinite(x) else x) for k, x in out.items()}
-
-
-def _first(obj, *names):
-    for n in names:
-        v = obj.get(n) if isinstance(obj, dict) else getattr(obj, n, None)
-        if v is not None:
-            return float(v)
-    return None
 
 
 def with_mast_moves(rows: list[dict], base: dict) -> list[dict]:
