@@ -13,10 +13,11 @@ from pathlib import Path
 
 from pydantic import BaseModel, ValidationError
 
-from ..defaults import MAX_SPEC_BYTES, MAX_SPEC_DEPTH, MIN_STATION_GAP_MM
+from ..defaults import MAX_ERROR_LINES, MAX_SPEC_BYTES, MAX_SPEC_DEPTH, MIN_STATION_GAP_MM
 from ..errors import SpecError
-from ..sections.readfile import NotReadable, read_capped
+from ..sections.readfile import NotReadable, control_char, printable, read_capped
 from .model import Spec
+from .types import MAX_SPEC_VALUES
 
 
 def _model_at(loc: tuple) -> type[BaseModel] | None:
@@ -142,18 +143,30 @@ def _station_order(data, i, stations, mirror) -> list[str]:
     return out
 
 
-def _too_deep(data, limit: int) -> str | None:
-    """The path of the first value nested deeper than ``limit`` (iterative: no recursion)."""
-    todo = [(data, "", 0)]
+def _raw_problems(data, source: str) -> list[str]:
+    """Before validation, on the raw TOML (iterative: no recursion): nesting deeper than
+    MAX_SPEC_DEPTH, more than MAX_SPEC_VALUES values, control characters in keys or text."""
+    todo, count, bad = [(data, (), 0)], 0, []
     while todo:
-        node, where, depth = todo.pop()
-        if depth > limit:
-            return where.lstrip(".") or "(top)"
+        node, loc, depth = todo.pop()
+        if depth > MAX_SPEC_DEPTH:
+            return [f"{source}: {_path(loc, data)}: nested deeper than {MAX_SPEC_DEPTH} levels; "
+                    "no spec needs that many"]
         items = node.items() if isinstance(node, dict) else enumerate(node) if isinstance(node, list) else ()
         for k, v in items:
+            count += 1
+            if count > MAX_SPEC_VALUES:
+                return [f"{source}: more than {MAX_SPEC_VALUES} keys and values; refused as no spec needs "
+                        "that many (limit MAX_SPEC_VALUES)"]
+            for text, what in ((k, "key"), (v, "text")):
+                c = control_char(text) if isinstance(text, str) else None
+                if c is not None and len(bad) < MAX_ERROR_LINES:
+                    at = _path(loc + (k,), data) if what == "text" else (_path(loc, data) if loc else "(top level)")
+                    bad.append(f"{source}: {at}: {what} {printable(text, 60)!r} holds a control character "
+                               f"(U+{ord(c):04X}); only printable text may reach the outputs")
             if isinstance(v, (dict, list)):
-                todo.append((v, f"{where}[{k}]" if isinstance(k, int) else f"{where}.{k}", depth + 1))
-    return None
+                todo.append((v, loc + (k,), depth + 1))
+    return bad
 
 
 def load_spec_text(text: str, source: str = "<spec>") -> Spec:
@@ -164,10 +177,9 @@ def load_spec_text(text: str, source: str = "<spec>") -> Spec:
         raise SpecError([f"{source}: not valid TOML: {exc}"]) from None
     except RecursionError:
         raise SpecError([f"{source}: not valid TOML: nested deeper than Python can read"]) from None
-    deep = _too_deep(data, MAX_SPEC_DEPTH)
-    if deep:
-        raise SpecError([f"{source}: {deep}: nested deeper than {MAX_SPEC_DEPTH} levels; "
-                         "no spec needs that many"])
+    raw = _raw_problems(data, source)
+    if raw:
+        raise SpecError(raw)
     problems = []
     spec = None
     try:
