@@ -89,3 +89,19 @@ def test_a_check_at_on_a_round_tip_is_on_the_part(tmp_path):
     p.write_text(wing_spec(extra='tip = "round"\n[[surface.check_at]]\ny = 420\n'))
     r = CliRunner().invoke(main, ["balance", str(p), "-o", str(tmp_path / "o")])
     assert r.exit_code == 0, r.output
+
+
+def two_surfaces(a: str, b: str) -> str:
+    text = wing_spec(name=a)
+    surf = text[text.index("[[surface]]"):].replace(f'name = "{a}"', f'name = "{b}"', 1)
+    return text + surf
+
+
+@pytest.mark.parametrize("text,field,what", [
+    (wing_spec(name="assembly"), 'surface[0] "assembly" name', "clash"),       # was found after lofting
+    (two_surfaces("wing", "Wing"), 'surface[1] "Wing" name', "already used"),  # one file on a case-insensitive disk
+    (two_surfaces("wing", "wing-mount"), 'surface[1] "wing-mount" name', "clash"),
+    (wing_spec(extra="[surface.shop]\nhotwire_cuts = [0, 0.0001, 0.0002, 400]\n"), "shop hotwire_cuts", "apart"),
+])
+def test_outputs_that_would_share_a_name_are_found_at_validation(tmp_path, text, field, what):
+    refused(tmp_path, text, field, what)

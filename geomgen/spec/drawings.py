@@ -13,6 +13,7 @@ from typing import Annotated, Optional
 
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator
 
+from ..defaults import MIN_STATION_GAP_MM
 from .types import MAX_HOTWIRE_CUTS, MAX_TEMPLATES, Int, Num
 
 #: Default chord positions of the offset table, % chord: the classic table spacing, dense
@@ -87,4 +88,11 @@ class ShopSpec(BaseModel):
     @field_validator("hotwire_cuts")
     @classmethod
     def _cuts(cls, v):
-        return v if v is None else _strictly_increasing(v, "cut positions")
+        if v is None:
+            return v
+        _strictly_increasing(v, "cut positions")
+        for a, b in zip(v[:-1], v[1:]):  # panel file names carry the ends to 0.01 mm
+            if b - a < MIN_STATION_GAP_MM:
+                raise ValueError(f"cut positions must be at least {MIN_STATION_GAP_MM:g} mm apart (panel file "
+                                 f"names would clash and no foam panel is that thin), got {b:g} after {a:g}")
+        return v

@@ -99,9 +99,14 @@ def _cross_checks(data: dict) -> list[str]:
             continue
         nm = surf.get("name")
         if isinstance(nm, str):
-            if nm in seen:
-                problems.append(f"{_path(('surface', i, 'name'), data)}: name '{nm}' is already used by surface[{seen[nm]}]")
-            seen.setdefault(nm, i)
+            key = nm.casefold()  # Wing and wing are one file on a case-insensitive disk
+            if key in seen:
+                problems.append(f"{_path(('surface', i, 'name'), data)}: name '{nm}' is already used by "
+                                f"surface[{seen[key]}] (file names would clash)")
+            seen.setdefault(key, i)
+            if key in RESERVED_NAMES:
+                problems.append(f"{_path(('surface', i, 'name'), data)}: '{nm}' is the name of another output "
+                                f"of the set (its file would clash); choose another name")
         stations = surf.get("station") if isinstance(surf.get("station"), list) else []
         problems += _station_order(data, i, stations, surf.get("mirror") is True)
         for j, st in enumerate(stations):
@@ -116,7 +121,24 @@ def _cross_checks(data: dict) -> list[str]:
                     hint = f"; did you mean '{close[0]}'?" if close else f"; defined: {', '.join(names) or 'none'}"
                     loc = ("surface", i, "station", j, "section" if what == "section" else "blend")
                     problems.append(f"{_path(loc, data)}: unknown {what} '{ref}'{hint}")
+    problems += _prefix_clashes(data, seen)
     return problems
+
+
+#: Words a surface may not be called: the set's own outputs named like a surface's files.
+RESERVED_NAMES = ("assembly",)
+
+
+def _prefix_clashes(data, seen: dict) -> list[str]:
+    """A surface's files are ``<set>-<name>-<what>``; a surface named ``<other>-<...>`` could
+    therefore write a file another surface writes (``wing-mount`` vs ``wing``'s mount)."""
+    out = []
+    for key, i in seen.items():
+        for other, j in seen.items():
+            if j != i and key.startswith(other + "-"):
+                out.append(f"{_path(('surface', i, 'name'), data)}: starts with the name of surface[{j}] "
+                           f"and '-', so their file names could clash; choose a name that does not")
+    return out
 
 
 def _station_order(data, i, stations, mirror) -> list[str]:
