@@ -28,6 +28,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..spec.types import MAX_LATTICE_BYTES, lattice_bytes
+
 #: Chord-fraction step of the finite difference for the camber-surface tangent.
 TANGENT_STEP = 1e-3
 
@@ -198,6 +200,13 @@ def build_lattice(models, span_panels: int, chord_panels: int) -> Lattice:
     """
     if span_panels < 2 or chord_panels < 1:
         raise ValueError("need span_panels >= 2 and chord_panels >= 1")
+    n = sum((2 if m.mirror else 1) * span_panels * chord_panels for m in models)
+    if lattice_bytes(n) > MAX_LATTICE_BYTES:  # before allocating (callers may ask for more than the spec)
+        from ..errors import SpecError
+
+        raise SpecError(f"span_panels, chord_panels: {span_panels} x {chord_panels} panels make {n} lattice "
+                        f"panels, about {lattice_bytes(n) / 2**30:.1f} GiB of matrices; the limit is "
+                        f"{MAX_LATTICE_BYTES / 2**30:g} GiB")
     parts = [surface_panels(m, span_panels, chord_panels) for m in models]
     off = np.cumsum([0] + [p["n_strips"] for p in parts])
     cat = lambda k: np.concatenate([p[k] for p in parts])  # noqa: E731

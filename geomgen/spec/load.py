@@ -17,7 +17,8 @@ from ..defaults import MAX_ERROR_LINES, MAX_SPEC_BYTES, MAX_SPEC_DEPTH, MIN_STAT
 from ..errors import SpecError
 from ..sections.readfile import NotReadable, control_char, printable, read_capped
 from .model import Spec
-from .types import MAX_SPEC_VALUES
+from .flight import DEFAULT_CHORD_PANELS, DEFAULT_SPAN_PANELS
+from .types import LATTICE_MATRICES, MAX_LATTICE_BYTES, MAX_SPEC_VALUES, lattice_bytes, lattice_panels
 
 
 def _model_at(loc: tuple) -> type[BaseModel] | None:
@@ -165,6 +166,21 @@ def _station_order(data, i, stations, mirror) -> list[str]:
     return out
 
 
+def _lattice_budget(spec) -> list[str]:
+    """The lattice's memory from its panel count, before anything is built."""
+    fl = spec.flight
+    ns = fl.span_panels if fl else DEFAULT_SPAN_PANELS
+    nc = fl.chord_panels if fl else DEFAULT_CHORD_PANELS
+    vertical = bool(fl and (fl.include_vertical or fl.vertical_in_pitch))
+    n = lattice_panels(spec.surface, ns, nc, vertical)
+    need = lattice_bytes(n)
+    if need <= MAX_LATTICE_BYTES:
+        return []
+    return [f"flight span_panels, chord_panels: {ns} x {nc} panels on these surfaces make {n} lattice panels, "
+            f"about {need / 2**30:.1f} GiB of matrices; the limit is {MAX_LATTICE_BYTES / 2**30:g} GiB "
+            f"(at most about {int((MAX_LATTICE_BYTES / (8 * LATTICE_MATRICES)) ** 0.5)} panels): fewer panels"]
+
+
 def _raw_problems(data, source: str) -> list[str]:
     """Before validation, on the raw TOML (iterative: no recursion): nesting deeper than
     MAX_SPEC_DEPTH, more than MAX_SPEC_VALUES values, control characters in keys or text."""
@@ -209,6 +225,8 @@ def load_spec_text(text: str, source: str = "<spec>") -> Spec:
     except ValidationError as exc:
         problems += [_describe(e, data) for e in exc.errors()]
     problems += _cross_checks(data)
+    if spec is not None and not problems:
+        problems += _lattice_budget(spec)
     if problems:
         raise SpecError([f"{source}: {p}" for p in problems])
     spec._source = Path(source)  # type: ignore[attr-defined]  (messages and relative files)

@@ -50,6 +50,27 @@ MAX_SPLITS = 100
 #: hundred. Two million unknown keys once took 68 s and printed two million lines.
 MAX_SPEC_VALUES = 20_000
 
-#: Memory the vortex-lattice influence matrix may take, bytes (float64, N x N for N panels
-#: of every surface in the lattice), computed before it is allocated.
+#: Memory the vortex-lattice matrices may take, bytes, computed from the panel count before
+#: anything is allocated. Solving holds about LATTICE_MATRICES float64 arrays of N x N for
+#: N panels (normal influence, three velocity components at the force points, the Trefftz
+#: wash, the solver's copy and its factorisation). A four-surface lattice at the largest
+#: panel counts once reached 12.7 GB; twelve surfaces would have asked for 68.7 GiB.
 MAX_LATTICE_BYTES = 1 << 30
+LATTICE_MATRICES = 7
+
+
+def lattice_bytes(n_panels: int) -> int:
+    """Memory the lattice solution of ``n_panels`` panels takes, bytes (see MAX_LATTICE_BYTES)."""
+    return LATTICE_MATRICES * 8 * int(n_panels) ** 2
+
+
+def lattice_panels(surfaces, span_panels: int, chord_panels: int, vertical: bool) -> int:
+    """Panels of the largest lattice the hydrodynamics builds for these surface specs:
+    horizontal wings and stabilizers, plus masts and fins when ``vertical``; a mirrored part
+    gets ``span_panels`` strips per half."""
+    n = 0
+    for s in surfaces:
+        lifting = s.role in ("wing", "stabilizer") and s.orientation == "horizontal"
+        if lifting or vertical:
+            n += (2 if s.mirror else 1) * span_panels * chord_panels
+    return n
