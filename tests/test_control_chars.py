@@ -51,3 +51,16 @@ def test_control_characters_in_spec_text_are_refused_naming_the_field(tmp_path, 
     assert not any(ord(c) < 32 and c != "\n" for c in r.output)  # the message itself is clean
     assert not out.exists()
 
+
+
+def test_report_text_values_carry_no_control_characters():
+    """Defence in depth: a value with control bytes that reached the report data by another
+    road than the spec is written without them, in HTML and in Markdown."""
+    from geomgen.report.content import V
+    from geomgen.report.render import _h, _m
+
+    data = {"spec": {"datum_origin": "at the\x07 mast\x1b[2J \u202eend"}}
+    for out in (_h(data, ["Datum origin: ", V(("spec", "datum_origin"), "str")]),
+                _m(data, ["Datum origin: ", V(("spec", "datum_origin"), "str")])):
+        assert "at the mast" in out and "end" in out
+        assert all(c.isprintable() for c in out)
