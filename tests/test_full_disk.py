@@ -5,6 +5,8 @@ from __future__ import annotations
 
 import re
 import subprocess
+import tempfile
+from pathlib import Path
 
 import pytest
 from click.testing import CliRunner
@@ -17,8 +19,9 @@ from conftest import snapshot, wing_spec
 @pytest.fixture
 def full_disk(tmp_path):
     """A 16 MiB tmpfs holding a built set, then filled to the last block."""
-    mnt = tmp_path / "disk"
-    mnt.mkdir()
+    # not under tmp_path: another pytest run on the machine may rename old temp folders, and
+    # the mount would then be left behind under a name we no longer know
+    mnt = Path(tempfile.mkdtemp(prefix="geomgen-full-disk-"))
     if subprocess.run(["mount", "-t", "tmpfs", "-o", "size=16m", "tmpfs", str(mnt)],
                       capture_output=True).returncode != 0:
         pytest.skip("cannot mount a tmpfs here (needs root)")
@@ -35,7 +38,9 @@ def full_disk(tmp_path):
                 pass
         yield spec, mnt
     finally:
-        subprocess.run(["umount", str(mnt)])
+        if subprocess.run(["umount", str(mnt)], capture_output=True).returncode != 0:
+            subprocess.run(["umount", "-l", str(mnt)], capture_output=True)
+        mnt.rmdir()
 
 
 @pytest.mark.slow
