@@ -202,3 +202,31 @@ def test_found_by_the_property_stl_centroid_of_a_long_mirrored_vertical_part():
     stl = {"centroid_mm": tuple(mesh.center_mass), "centroid_lever": tuple(lever)}
     recs = compare_part("p", intended_figures(m).as_dict(), None, stl, 0.02, {})
     assert not [r for r in recs if r.fault]
+
+
+NUMERIC_FIELDS = ["surface.reference", "surface.incidence", "surface.te_thickness", "surface.loft_sections",
+                  "surface.tip_length", "surface.tip_end", "station.y", "station.chord", "station.twist",
+                  "station.x", "station.z"]
+HOSTILE = st.one_of(
+    st.sampled_from(["inf", "-inf", "nan", "true", "false", '"1"', "[]", "{}", "1e308", "-1e308"]),
+    st.floats(min_value=1e5, max_value=1e308).map(repr),
+    st.floats(min_value=-1e308, max_value=-1e5).map(repr))
+
+
+@given(st.sampled_from(NUMERIC_FIELDS), HOSTILE)
+def test_hostile_numbers_are_refused_naming_the_field(where, bad):
+    """Any hostile value in any number of the spec: exit 2 naming the file and the field,
+    no traceback, nothing written (issue 16)."""
+    import tempfile
+    from pathlib import Path
+
+    from geomgen.cli import main
+
+    with tempfile.TemporaryDirectory() as d:
+        p, out = Path(d) / "h.toml", Path(d) / "out"
+        p.write_text(corrupt(BASE, where, bad))
+        r = CliRunner().invoke(main, ["balance", str(p), "-o", str(out)])
+        assert r.exit_code == 2 and "Traceback" not in r.output, r.output
+        key = where.rsplit(".", 1)[-1]
+        assert any(line.startswith(f"spec error: {p}") and key in line for line in r.output.splitlines()), r.output
+        assert not out.exists()

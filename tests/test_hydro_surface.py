@@ -91,5 +91,12 @@ def test_foil_above_water_and_no_mast_refused():
 
 def test_memory_budget_refused_before_allocating():
     text = _demo_text().replace('fluid = "seawater"', 'fluid = "seawater"\nspan_panels = 100\nchord_panels = 40')
-    with pytest.raises(SpecError, match=r"flight.span_panels, flight.chord_panels: .* GiB budget"):
+    # refused when the spec is read (the panel count is known then), naming the fields
+    with pytest.raises(SpecError, match=r"flight.span_panels, .*chord_panels: .* GiB"):
         analyse_spec(load_spec_text(text))
+    # and again by the lattice itself, for callers that ask for more panels than the spec
+    from geomgen.geometry import build_models
+    from geomgen.hydro.lattice import build_lattice
+
+    with pytest.raises(SpecError, match=r"GiB budget"):
+        build_lattice(build_models(load_spec_text(_demo_text())), 100, 40)

@@ -54,7 +54,7 @@ def test_all_problems_at_once(write_spec):
     path = write_spec(text)
     msgs = problems_of(path)
     joined = "\n".join(msgs)
-    assert "station[1] chord: Input should be greater than 0, got -10" in joined
+    assert "station[1] chord: Input should be greater than or equal to 0.1, got -10" in joined
     assert "station[2] y: must be greater than station[1].y = 300" in joined
     assert "station[2] section: unknown section 'nope'" in joined
     assert len(msgs) == 3 and all(m.startswith(f"{path}: ") for m in msgs)

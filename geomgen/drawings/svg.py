@@ -13,6 +13,7 @@ import xml.etree.ElementTree as ET
 
 from .. import CAUTION
 from ..errors import ExportError
+from ..sections.readfile import printable
 from .common import Cut, fmt_y
 from .templates import MARK_MM, MARK_RADIUS_MM, line_step, sheet_notes, stack, wrap
 
@@ -39,7 +40,7 @@ def _line(parent, x1, y1, x2, y2, cls, **extra):
 def _text(parent, x, y, text, size, cls="label", anchor="start"):
     el = ET.SubElement(parent, "text", {"x": _n(x), "y": _n(y), "font-size": _n(size),
                                         "font-family": "sans-serif", "class": cls, "text-anchor": anchor})
-    el.text = text
+    el.text = printable(text, 10_000)  # XML 1.0 has no control characters
     return el
 
 

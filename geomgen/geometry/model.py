@@ -140,6 +140,13 @@ def check_geometry(model: SurfaceModel, where) -> list[str]:
     return out
 
 
+def check_at_problems(model: SurfaceModel) -> list[str]:
+    """``check_at`` positions off the part: measuring there would measure the tip and pass."""
+    lo, hi = float(model.planform.y[0]), float(model.half_span)
+    return [f"check_at[{j}] y: {c.y:g} mm is off the part (it runs from {lo:g} to {hi:.6g} mm), got {c.y:g}"
+            for j, c in enumerate(model.spec.check_at) if not lo <= c.y <= hi + 1e-6]
+
+
 def _uses(st) -> set:
     return {st.section} | ({st.blend.section} if st.blend else set())
 
@@ -193,6 +200,10 @@ def build_models(spec, source: str | Path = "<spec>") -> list[SurfaceModel]:
                 f"te_thickness <= {limit:.2f}, a thicker section or a longer chord there")
             continue
         models.append(model)
+    for i, sf in enumerate(spec.surface):
+        model = next((m for m in models if m.spec is sf), None)
+        if model is not None:
+            problems += [f'{src}: surface[{i}] "{sf.name}" {p}' for p in check_at_problems(model)]
     for model in models:
         mids = [0.5 * (a + b) for seg in model.loft_y() for a, b in zip(seg[:-1], seg[1:])]
         where = sorted({float(abs(v)) for seg in model.loft_y() for v in seg} | {abs(v) for v in mids})

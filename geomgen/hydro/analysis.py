@@ -345,8 +345,9 @@ def balance_of(project, **kwargs) -> HydroResult:
     from ..errors import SpecError
 
     def solve() -> HydroResult:
+        models = project.models  # its own problems already name the file and field
         try:
-            return analyse(project.models, project.spec.flight, **kwargs)
+            return analyse(models, project.spec.flight, **kwargs)
         except SpecError as exc:
             raise SpecError([f"{project.source}: {p}" for p in exc.problems]) from None
 

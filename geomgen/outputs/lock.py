@@ -83,8 +83,11 @@ class FolderLock:
             before = os.pread(fd, 200, 0).decode("utf-8", "replace").split()
             if before and before[0] != str(os.getpid()):
                 self.took_over = _owner_of(" ".join(before))
-            os.ftruncate(fd, 0)
-            os.pwrite(fd, f"{os.getpid()} {socket.gethostname()} {time.time():.0f}\n".encode(), 0)
+            try:
+                os.ftruncate(fd, 0)
+                os.pwrite(fd, f"{os.getpid()} {socket.gethostname()} {time.time():.0f}\n".encode(), 0)
+            except OSError:  # a full disk: the pid only names the owner in messages; the flock is the lock
+                pass
             _held[self._key] = [fd, 1]
             return self
 

@@ -10,7 +10,15 @@ from __future__ import annotations
 import base64
 import html
 
-from .content import Bullets, Figure, Heading, Para, Table, V, page, text
+from ..sections.readfile import printable
+from .content import Bullets, Figure, Heading, Para, Table, V, page
+from .content import text as _text
+
+
+def text(data, v) -> str:
+    """A report value as text, without control characters (the spec refuses them; this keeps
+    any that reach the data by another road out of the HTML and Markdown)."""
+    return printable(_text(data, v), 100_000)
 
 CSS = """
 body{font-family:system-ui,-apple-system,"Segoe UI",Roboto,"DejaVu Sans",sans-serif;max-width:1180px;margin:1.2em auto;

@@ -27,7 +27,7 @@ from scipy.interpolate import BSpline, make_smoothing_spline
 from .. import defaults
 from ..errors import SpecError
 from .base import Section
-from .readfile import NotReadable, read_capped
+from .readfile import NotReadable, printable, read_capped
 
 MAX_BYTES = 10_000_000  #: larger files are refused (public files are a few kB)
 MAX_LINES = 100_000  #: more lines are refused
@@ -71,8 +71,8 @@ def _tokens(ctx: _Where, text: str):
             vals = None
         first, started = not started, True
         if vals is None or len(vals) != 2:
-            if first:  # the name line
-                name = s
+            if first:  # the name line (a label in drawings: control characters removed)
+                name = printable(s, 80).strip() or None
                 continue
             raise ctx.err(f"expected two numbers, got {_short(s)}", ln)
         if not np.all(np.isfinite(vals)):

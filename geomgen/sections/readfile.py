@@ -9,6 +9,26 @@ from __future__ import annotations
 
 import os
 import stat
+import unicodedata
+
+#: Format characters that reorder or hide text (bidirectional overrides and isolates).
+_BIDI = set("\u202a\u202b\u202c\u202d\u202e\u2066\u2067\u2068\u2069\u200e\u200f")
+
+
+def control_char(text: str) -> str | None:
+    """The first character of ``text`` that must not reach an output (a C0/C1 control,
+    DEL, a surrogate, a non-character or a bidirectional override), or None."""
+    for c in text:
+        if unicodedata.category(c) in ("Cc", "Cs") or c in _BIDI or c in "\ufffe\uffff":
+            return c
+    return None
+
+
+def printable(text: str, max_len: int = 200) -> str:
+    """``text`` with every such character removed and cut to ``max_len`` characters (labels
+    taken from untrusted files: an SVG must stay well-formed XML, a report clean)."""
+    out = "".join(c for c in text if control_char(c) is None)
+    return out if len(out) <= max_len else out[: max_len - 1] + "…"
 
 
 class NotReadable(ValueError):

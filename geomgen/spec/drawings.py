@@ -13,13 +13,16 @@ from typing import Annotated, Optional
 
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator
 
+from ..defaults import MIN_STATION_GAP_MM
+from .types import MAX_HOTWIRE_CUTS, MAX_TEMPLATES, Int, Num
+
 #: Default chord positions of the offset table, % chord: the classic table spacing, dense
 #: at the nose where the shape changes fastest (common practice, no source).
 OFFSET_PCT_DEFAULT = (0.0, 1.25, 2.5, 5.0, 7.5, 10.0, 15.0, 20.0, 25.0, 30.0, 40.0, 50.0,
                       60.0, 70.0, 80.0, 90.0, 95.0, 100.0)
 
-SpanPos = Annotated[float, Field(ge=0.0, le=5000.0)]
-ChordPct = Annotated[float, Field(ge=0.0, le=100.0)]
+SpanPos = Annotated[Num, Field(ge=0.0, le=5000.0)]
+ChordPct = Annotated[Num, Field(ge=0.0, le=100.0)]
 
 
 def _strictly_increasing(values, what: str):
@@ -36,16 +39,16 @@ class ShopSpec(BaseModel):
 
     # -- templates ----------------------------------------------------------------
     templates_at: list[SpanPos] = Field(
-        default_factory=list,
+        default_factory=list, max_length=MAX_TEMPLATES,
         description="extra span positions for section templates and offset rows, mm from the root "
                     "(every station is always included)")
-    template_spacing_mm: float = Field(
+    template_spacing_mm: Num = Field(
         12.0, gt=0.0, le=200.0, description="gap between templates stacked on a sheet, mm")
-    template_margin_mm: float = Field(10.0, ge=0.0, le=100.0, description="margin around the sheet, mm")
-    template_tol_mm: float = Field(
+    template_margin_mm: Num = Field(10.0, ge=0.0, le=100.0, description="margin around the sheet, mm")
+    template_tol_mm: Num = Field(
         0.002, ge=0.0005, le=0.1,
         description="largest gap between a drawn template outline (polyline) and the true section, mm")
-    label_height_mm: float = Field(3.0, ge=1.0, le=20.0, description="text height of template labels, mm")
+    label_height_mm: Num = Field(3.0, ge=1.0, le=20.0, description="text height of template labels, mm")
 
     # -- offset tables ------------------------------------------------------------
     offset_pct: list[ChordPct] = Field(
@@ -55,18 +58,18 @@ class ShopSpec(BaseModel):
     # -- hot-wire profiles ----------------------------------------------------------
     hotwire: StrictBool = Field(True, description="write hot-wire profiles for foam-core panels")
     hotwire_cuts: Optional[list[SpanPos]] = Field(
-        None, min_length=2,
+        None, min_length=2, max_length=MAX_HOTWIRE_CUTS,
         description="span positions where the half span is cut into foam panels, mm from the root, "
                     "increasing; each neighbouring pair is one panel (default: the stations)")
-    hotwire_points: int = Field(
+    hotwire_points: Int = Field(
         100, ge=10, le=1000,
         description="points per side (upper and lower) of each hot-wire profile; both ends of a "
                     "panel get the same count at the same chord parameter")
-    kerf_mm: float = Field(
+    kerf_mm: Num = Field(
         0.0, ge=0.0, le=5.0,
         description="hot-wire kerf, mm: the wire path is offset outward by half of it so the core "
                     "comes out at size (0 = no compensation)")
-    hotwire_corner_points: int = Field(
+    hotwire_corner_points: Int = Field(
         7, ge=2, le=64,
         description="points on the rounded wire path around each trailing-edge corner when kerf_mm > 0")
 
@@ -85,4 +88,11 @@ class ShopSpec(BaseModel):
     @field_validator("hotwire_cuts")
     @classmethod
     def _cuts(cls, v):
-        return v if v is None else _strictly_increasing(v, "cut positions")
+        if v is None:
+            return v
+        _strictly_increasing(v, "cut positions")
+        for a, b in zip(v[:-1], v[1:]):  # panel file names carry the ends to 0.01 mm
+            if b - a < MIN_STATION_GAP_MM:
+                raise ValueError(f"cut positions must be at least {MIN_STATION_GAP_MM:g} mm apart (panel file "
+                                 f"names would clash and no foam panel is that thin), got {b:g} after {a:g}")
+        return v

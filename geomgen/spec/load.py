@@ -13,10 +13,12 @@ from pathlib import Path
 
 from pydantic import BaseModel, ValidationError
 
-from ..defaults import MAX_SPEC_BYTES, MAX_SPEC_DEPTH, MIN_STATION_GAP_MM
+from ..defaults import MAX_ERROR_LINES, MAX_SPEC_BYTES, MAX_SPEC_DEPTH, MIN_STATION_GAP_MM
 from ..errors import SpecError
-from ..sections.readfile import NotReadable, read_capped
+from ..sections.readfile import NotReadable, control_char, printable, read_capped
 from .model import Spec
+from .flight import DEFAULT_CHORD_PANELS, DEFAULT_SPAN_PANELS
+from .types import LATTICE_MATRICES, MAX_LATTICE_BYTES, MAX_SPEC_VALUES, lattice_bytes, lattice_panels
 
 
 def _model_at(loc: tuple) -> type[BaseModel] | None:
@@ -98,9 +100,14 @@ def _cross_checks(data: dict) -> list[str]:
             continue
         nm = surf.get("name")
         if isinstance(nm, str):
-            if nm in seen:
-                problems.append(f"{_path(('surface', i, 'name'), data)}: name '{nm}' is already used by surface[{seen[nm]}]")
-            seen.setdefault(nm, i)
+            key = nm.casefold()  # Wing and wing are one file on a case-insensitive disk
+            if key in seen:
+                problems.append(f"{_path(('surface', i, 'name'), data)}: name '{nm}' is already used by "
+                                f"surface[{seen[key]}] (file names would clash)")
+            seen.setdefault(key, i)
+            if key in RESERVED_NAMES:
+                problems.append(f"{_path(('surface', i, 'name'), data)}: '{nm}' is the name of another output "
+                                f"of the set (its file would clash); choose another name")
         stations = surf.get("station") if isinstance(surf.get("station"), list) else []
         problems += _station_order(data, i, stations, surf.get("mirror") is True)
         for j, st in enumerate(stations):
@@ -115,7 +122,24 @@ def _cross_checks(data: dict) -> list[str]:
                     hint = f"; did you mean '{close[0]}'?" if close else f"; defined: {', '.join(names) or 'none'}"
                     loc = ("surface", i, "station", j, "section" if what == "section" else "blend")
                     problems.append(f"{_path(loc, data)}: unknown {what} '{ref}'{hint}")
+    problems += _prefix_clashes(data, seen)
     return problems
+
+
+#: Words a surface may not be called: the set's own outputs named like a surface's files.
+RESERVED_NAMES = ("assembly",)
+
+
+def _prefix_clashes(data, seen: dict) -> list[str]:
+    """A surface's files are ``<set>-<name>-<what>``; a surface named ``<other>-<...>`` could
+    therefore write a file another surface writes (``wing-mount`` vs ``wing``'s mount)."""
+    out = []
+    for key, i in seen.items():
+        for other, j in seen.items():
+            if j != i and key.startswith(other + "-"):
+                out.append(f"{_path(('surface', i, 'name'), data)}: starts with the name of surface[{j}] "
+                           f"and '-', so their file names could clash; choose a name that does not")
+    return out
 
 
 def _station_order(data, i, stations, mirror) -> list[str]:
@@ -142,18 +166,45 @@ def _station_order(data, i, stations, mirror) -> list[str]:
     return out
 
 
-def _too_deep(data, limit: int) -> str | None:
-    """The path of the first value nested deeper than ``limit`` (iterative: no recursion)."""
-    todo = [(data, "", 0)]
+def _lattice_budget(spec) -> list[str]:
+    """The lattice's memory from its panel count, before anything is built."""
+    fl = spec.flight
+    ns = fl.span_panels if fl else DEFAULT_SPAN_PANELS
+    nc = fl.chord_panels if fl else DEFAULT_CHORD_PANELS
+    vertical = bool(fl and (fl.include_vertical or fl.vertical_in_pitch))
+    n = lattice_panels(spec.surface, ns, nc, vertical)
+    need = lattice_bytes(n)
+    if need <= MAX_LATTICE_BYTES:
+        return []
+    return [f"flight span_panels, chord_panels: {ns} x {nc} panels on these surfaces make {n} lattice panels, "
+            f"about {need / 2**30:.1f} GiB of matrices; the limit is {MAX_LATTICE_BYTES / 2**30:g} GiB "
+            f"(at most about {int((MAX_LATTICE_BYTES / (8 * LATTICE_MATRICES)) ** 0.5)} panels): fewer panels"]
+
+
+def _raw_problems(data, source: str) -> list[str]:
+    """Before validation, on the raw TOML (iterative: no recursion): nesting deeper than
+    MAX_SPEC_DEPTH, more than MAX_SPEC_VALUES values, control characters in keys or text."""
+    todo, count, bad = [(data, (), 0)], 0, []
     while todo:
-        node, where, depth = todo.pop()
-        if depth > limit:
-            return where.lstrip(".") or "(top)"
+        node, loc, depth = todo.pop()
+        if depth > MAX_SPEC_DEPTH:
+            return [f"{source}: {_path(loc, data)}: nested deeper than {MAX_SPEC_DEPTH} levels; "
+                    "no spec needs that many"]
         items = node.items() if isinstance(node, dict) else enumerate(node) if isinstance(node, list) else ()
         for k, v in items:
+            count += 1
+            if count > MAX_SPEC_VALUES:
+                return [f"{source}: more than {MAX_SPEC_VALUES} keys and values; refused as no spec needs "
+                        "that many (limit MAX_SPEC_VALUES)"]
+            for text, what in ((k, "key"), (v, "text")):
+                c = control_char(text) if isinstance(text, str) else None
+                if c is not None and len(bad) < MAX_ERROR_LINES:
+                    at = _path(loc + (k,), data) if what == "text" else (_path(loc, data) if loc else "(top level)")
+                    bad.append(f"{source}: {at}: {what} {printable(text, 60)!r} holds a control character "
+                               f"(U+{ord(c):04X}); only printable text may reach the outputs")
             if isinstance(v, (dict, list)):
-                todo.append((v, f"{where}[{k}]" if isinstance(k, int) else f"{where}.{k}", depth + 1))
-    return None
+                todo.append((v, loc + (k,), depth + 1))
+    return bad
 
 
 def load_spec_text(text: str, source: str = "<spec>") -> Spec:
@@ -164,10 +215,9 @@ def load_spec_text(text: str, source: str = "<spec>") -> Spec:
         raise SpecError([f"{source}: not valid TOML: {exc}"]) from None
     except RecursionError:
         raise SpecError([f"{source}: not valid TOML: nested deeper than Python can read"]) from None
-    deep = _too_deep(data, MAX_SPEC_DEPTH)
-    if deep:
-        raise SpecError([f"{source}: {deep}: nested deeper than {MAX_SPEC_DEPTH} levels; "
-                         "no spec needs that many"])
+    raw = _raw_problems(data, source)
+    if raw:
+        raise SpecError(raw)
     problems = []
     spec = None
     try:
@@ -175,6 +225,8 @@ def load_spec_text(text: str, source: str = "<spec>") -> Spec:
     except ValidationError as exc:
         problems += [_describe(e, data) for e in exc.errors()]
     problems += _cross_checks(data)
+    if spec is not None and not problems:
+        problems += _lattice_budget(spec)
     if problems:
         raise SpecError([f"{source}: {p}" for p in problems])
     spec._source = Path(source)  # type: ignore[attr-defined]  (messages and relative files)

@@ -6,6 +6,7 @@ written for the person editing a spec.
 
 from __future__ import annotations
 
+import math
 import re
 from typing import Literal, Optional, Union
 
@@ -16,11 +17,15 @@ from ..sections.naca import parse_designation
 from .flight import FlightSpec
 from .drawings import ShopSpec
 from .parts import LaminateSpec, MountSpec, PrintingSpec
+from .types import MAX_CHECK_AT, MAX_DATUM_MM, MAX_STATIONS, MAX_SURFACES, DatumMM, Int, Num
 
 
 class _Strict(BaseModel):
     model_config = ConfigDict(extra="forbid", allow_inf_nan=False, validate_default=True)
 
+
+#: Largest expected figure in any unit (mm⁴ of a big mast root is about 1e8).
+MAX_FIGURE = 1e15
 
 _TOL = re.compile(r"^\s*([0-9]*\.?[0-9]+(?:[eE][-+]?\d+)?)\s*%\s*$")
 
@@ -28,19 +33,33 @@ _TOL = re.compile(r"^\s*([0-9]*\.?[0-9]+(?:[eE][-+]?\d+)?)\s*%\s*$")
 class Expectation(_Strict):
     """A number from the calculation sheet with its tolerance."""
 
-    value: float = Field(description="expected value, in the figure's unit")
-    tol: Union[float, str] = Field(
-        description="absolute tolerance in the figure's unit (e.g. 0.5) or a percentage ('0.5%')")
+    value: Num = Field(ge=-MAX_FIGURE, le=MAX_FIGURE, description="expected value, in the figure's unit")
+    tol: Union[Num, str] = Field(
+        description="absolute tolerance in the figure's unit (e.g. 0.5) or a percentage ('0.5%'), "
+                    "at most the value's size (a percentage below 100)")
 
-    @field_validator("tol")
+    @field_validator("tol", mode="before")
     @classmethod
     def _tol(cls, v):
         if isinstance(v, str):
-            if not _TOL.match(v):
-                raise ValueError(f"tolerance must be a number or a percentage like '0.5%', got '{v}'")
-        elif v < 0:
-            raise ValueError(f"tolerance must be >= 0, got {v}")
-        return v
+            m = _TOL.match(v)
+            if not m:
+                raise ValueError(f"tolerance must be a number or a percentage like '0.5%', got {v!r}")
+            if not float(m.group(1)) < 100.0:
+                raise ValueError(f"a percentage tolerance must be below 100% (it would pass anything), got {v!r}")
+            return v
+        if isinstance(v, bool) or not isinstance(v, (int, float)):
+            raise ValueError(f"tolerance must be a number or a percentage like '0.5%', got {v!r}")
+        if not math.isfinite(v) or v < 0:
+            raise ValueError(f"tolerance must be a finite number >= 0, got {v!r}")
+        return float(v)
+
+    @model_validator(mode="after")
+    def _meaningful(self):
+        if isinstance(self.tol, float) and self.tol > max(abs(self.value), 1.0):
+            raise ValueError(f"tol {self.tol:g} is larger than the value {self.value:g} itself (it would pass "
+                             "a part of zero size); give at most the value's size")
+        return self
 
     def tolerance_for(self, value: float) -> float:
         """Absolute tolerance (figure units) around ``value``."""
@@ -84,7 +103,8 @@ class Expect(_Strict):
 class CheckAt(_Strict):
     """A shop or class-rule measurement at one span position of the written part."""
 
-    y: float = Field(ge=0.0, description="span position from the root (centreline of a mirrored part), mm")
+    y: Num = Field(ge=0.0, le=MAX_DATUM_MM,
+                   description="span position from the root (centreline of a mirrored part), mm")
     chord: Optional[Expectation] = Field(None, description="expected chord, mm")
     thickness: Optional[Expectation] = Field(None, description="expected maximum thickness, mm")
     area_mm2: Optional[Expectation] = Field(None, description="expected cross-section area, mm²")
@@ -93,7 +113,7 @@ class CheckAt(_Strict):
     i_normal_mm4: Optional[Expectation] = Field(
         None, description="expected second moment about the centroidal axis normal to the chord, mm⁴")
     j_mm4: Optional[Expectation] = Field(None, description="expected torsion constant of the solid section, mm⁴")
-    profile_tol: Optional[float] = Field(
+    profile_tol: Optional[Num] = Field(
         None, gt=0.0, le=10.0, description="largest allowed distance of the written section from the intended one, mm")
 
 
@@ -103,7 +123,7 @@ class SectionSpec(_Strict):
     naca: Optional[str] = Field(None, description="NACA 4- or 5-digit designation, e.g. '2412', '23012'")
     file: Optional[str] = Field(None, description="coordinate file, relative to the spec file")
     closed_te: StrictBool = Field(False, description="NACA only: closed trailing-edge thickness coefficient")
-    thickness_pct: Optional[float] = Field(
+    thickness_pct: Optional[Num] = Field(
         None, gt=0.5, le=40.0, description="rescale so the maximum thickness is this % of chord")
     invert: StrictBool = Field(False, description="mirror the camber (pressure side on top)")
 
@@ -125,24 +145,24 @@ class Blend(_Strict):
     """Blend this station's section toward another one."""
 
     section: str = Field(description="name of the section blended in")
-    fraction: float = Field(ge=0.0, le=1.0, description="0 = own section, 1 = the other one")
+    fraction: Num = Field(ge=0.0, le=1.0, description="0 = own section, 1 = the other one")
 
 
 class StationSpec(_Strict):
     """One spanwise station. Offsets are of the reference point, in the surface's own frame."""
 
-    y: float = Field(ge=0.0, description="spanwise distance from the root reference point, mm")
-    chord: float = Field(gt=0.0, le=5000.0, description="chord, mm")
-    x: Optional[float] = Field(None, ge=-5000, le=5000,
+    y: Num = Field(ge=0.0, le=5000.0, description="spanwise distance from the root reference point, mm")
+    chord: Num = Field(ge=0.1, le=5000.0, description="chord, mm (0.1 mm: an elliptic tip; less cannot be made)")
+    x: Optional[Num] = Field(None, ge=-5000, le=5000,
                                description="aft offset of the reference point (sweep), mm; or give 'sweep'")
-    sweep: Optional[float] = Field(None, gt=-80.0, lt=80.0,
+    sweep: Optional[Num] = Field(None, gt=-80.0, lt=80.0,
                                    description="panel sweep of the reference line from the previous station, deg")
-    z: Optional[float] = Field(None, ge=-5000, le=5000,
+    z: Optional[Num] = Field(None, ge=-5000, le=5000,
                                description="offset normal to the span toward the upper side (dihedral), mm; "
                                            "negative is anhedral; or give 'dihedral'")
-    dihedral: Optional[float] = Field(None, gt=-80.0, lt=80.0,
+    dihedral: Optional[Num] = Field(None, gt=-80.0, lt=80.0,
                                       description="panel dihedral from the previous station, deg (negative: anhedral)")
-    twist: float = Field(0.0, ge=-45.0, le=45.0, description="twist, deg, positive = leading edge up")
+    twist: Num = Field(0.0, ge=-45.0, le=45.0, description="twist, deg, positive = leading edge up")
     section: str = Field(description="name of a section in [sections]")
     blend: Optional[Blend] = None
 
@@ -165,29 +185,29 @@ class SurfaceSpec(_Strict):
         "horizontal", description="horizontal: span along +y; vertical-up: span along +z (mast); "
                                   "vertical-down: span along -z (fin)")
     mirror: StrictBool = Field(False, description="stations describe one half; the part spans both sides")
-    position: tuple[float, float, float] = Field(
+    position: tuple[DatumMM, DatumMM, DatumMM] = Field(
         (0.0, 0.0, 0.0), description="datum position of the root reference point [x, y, z], mm")
-    reference: float = Field(0.25, ge=0.0, le=1.0,
+    reference: Num = Field(0.25, ge=0.0, le=1.0,
                              description="chord fraction of the reference point (twist and incidence axis)")
-    incidence: float = Field(0.0, ge=-30.0, le=30.0, description="deg, positive = leading edge up")
-    te_thickness: float = Field(defaults.TE_THICKNESS_MM, ge=0.0, le=20.0,
+    incidence: Num = Field(0.0, ge=-30.0, le=30.0, description="deg, positive = leading edge up")
+    te_thickness: Num = Field(defaults.TE_THICKNESS_MM, ge=0.0, le=20.0,
                                 description="finished trailing-edge thickness, mm (0 = sharp)")
     interpolation: Literal["linear", "smooth"] = Field(
         "linear", description="between stations: linear, or smooth (shape-preserving cubic)")
-    loft_sections: int = Field(defaults.LOFT_SECTIONS, ge=4, le=400,
+    loft_sections: Int = Field(defaults.LOFT_SECTIONS, ge=4, le=400,
                                description="loft sections per half span (more: closer to a curved planform)")
     tip: Literal["flat", "round"] = Field(
         "flat", description="flat: a flat cap at the last station; round: the planform closes beyond the last "
                             "station in a quarter ellipse (chord and thickness shrink, trailing edge thins) "
                             "to a small flat end")
-    tip_length: Optional[float] = Field(None, gt=0.0, le=2000.0,
+    tip_length: Optional[Num] = Field(None, gt=0.0, le=2000.0,
                                         description="round tip: length beyond the last station, mm "
                                                     "(default half the last chord)")
-    tip_end: float = Field(defaults.ROUND_TIP_END_CHORD, ge=0.02, le=0.6,
+    tip_end: Num = Field(defaults.ROUND_TIP_END_CHORD, ge=0.02, le=0.6,
                            description="round tip: chord of the small flat end, as a fraction of the last chord")
-    station: list[StationSpec] = Field(min_length=2, description="spanwise stations, root first")
+    station: list[StationSpec] = Field(min_length=2, max_length=MAX_STATIONS, description="spanwise stations, root first")
     expect: Optional[Expect] = None
-    check_at: list[CheckAt] = Field(default_factory=list,
+    check_at: list[CheckAt] = Field(default_factory=list, max_length=MAX_CHECK_AT,
                                     description="measurements at named span positions (chord, thickness, profile)")
     shop: Optional[ShopSpec] = Field(None, description="section templates, offset tables, hot-wire profiles")
     mount: Optional[MountSpec] = Field(None, description="mounting pad and bolt holes")
@@ -209,5 +229,5 @@ class Spec(_Strict):
     name: str = Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$", description="set name, used in file names")
     datum: Datum
     sections: dict[str, SectionSpec] = Field(min_length=1)
-    surface: list[SurfaceSpec] = Field(min_length=1)
+    surface: list[SurfaceSpec] = Field(min_length=1, max_length=MAX_SURFACES)
     flight: Optional[FlightSpec] = Field(None, description="mass, speeds and fluid for the hydrodynamics")

@@ -15,6 +15,8 @@ from typing import Literal, Optional, Union
 
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator, model_validator
 
+from .types import MAX_SPLITS, DatumMM, Int, Num
+
 
 class _Strict(BaseModel):
     model_config = ConfigDict(extra="forbid", allow_inf_nan=False, validate_default=True)
@@ -24,34 +26,34 @@ class _Strict(BaseModel):
 class Counterbore(_Strict):
     """Flat-bottomed recess for a bolt head on the side away from the pad."""
 
-    diameter: float = Field(gt=0.5, le=100.0, description="recess diameter, mm (larger than the hole)")
-    depth: float = Field(gt=0.0, le=100.0,
+    diameter: Num = Field(gt=0.5, le=100.0, description="recess diameter, mm (larger than the hole)")
+    depth: Num = Field(gt=0.0, le=100.0,
                          description="recess depth along the hole axis from where the axis leaves the skin, mm")
 
 
 class Countersink(_Strict):
     """Conical recess for a flat-head bolt on the side away from the pad."""
 
-    angle: float = Field(90.0, ge=60.0, le=130.0, description="included cone angle, deg (90 for ISO flat heads)")
-    diameter: float = Field(gt=0.5, le=100.0,
+    angle: Num = Field(90.0, ge=60.0, le=130.0, description="included cone angle, deg (90 for ISO flat heads)")
+    diameter: Num = Field(gt=0.5, le=100.0,
                             description="cone diameter where the hole axis leaves the skin, mm (larger than the hole)")
 
 
 class Insert(_Strict):
     """Blind pocket, entered from the pad, for a threaded insert (glued or pressed in)."""
 
-    diameter: float = Field(gt=0.5, le=100.0, description="pocket diameter, mm")
-    depth: float = Field(gt=0.0, le=200.0, description="pocket depth from the pad along the hole axis, mm")
+    diameter: Num = Field(gt=0.5, le=100.0, description="pocket diameter, mm")
+    depth: Num = Field(gt=0.0, le=200.0, description="pocket depth from the pad along the hole axis, mm")
 
 
 class HoleSpec(_Strict):
     """One bolt hole. Its axis is parallel to the datum z axis (normal to the pad), not to the
     chord's normal, so a bolt pulls the part straight onto the fuselage."""
 
-    x: float = Field(ge=-10000.0, le=10000.0, description="datum x of the hole axis, mm")
-    y: float = Field(0.0, ge=-10000.0, le=10000.0, description="datum y of the hole axis, mm")
-    diameter: float = Field(gt=0.5, le=100.0, description="hole (bolt clearance) diameter, mm")
-    depth: Optional[float] = Field(
+    x: Num = Field(ge=-10000.0, le=10000.0, description="datum x of the hole axis, mm")
+    y: Num = Field(0.0, ge=-10000.0, le=10000.0, description="datum y of the hole axis, mm")
+    diameter: Num = Field(gt=0.5, le=100.0, description="hole (bolt clearance) diameter, mm")
+    depth: Optional[Num] = Field(
         None, gt=0.0, le=500.0,
         description="blind hole depth from the pad along the axis, mm; omit for a hole through the part")
     counterbore: Optional[Counterbore] = Field(None, description="bolt-head recess on the far side (through holes)")
@@ -80,15 +82,15 @@ class HoleSpec(_Strict):
 class ShimSpec(_Strict):
     """A printable wedge between the pad and the fuselage that changes this surface's incidence."""
 
-    angle: float = Field(ge=-6.0, le=6.0,
+    angle: Num = Field(ge=-6.0, le=6.0,
                          description="change of this surface's incidence, deg; positive = leading edge up "
                                      "(relative to the fuselage). Not 0")
-    length: Optional[float] = Field(None, gt=2.0, le=1000.0,
+    length: Optional[Num] = Field(None, gt=2.0, le=1000.0,
                                     description="footprint along x, mm [default: the pad's length]")
-    width: Optional[float] = Field(None, gt=2.0, le=1000.0,
+    width: Optional[Num] = Field(None, gt=2.0, le=1000.0,
                                    description="footprint along y, mm [default: the pad's width]")
-    min_thickness: float = Field(1.0, ge=0.3, le=20.0, description="thickness at the thin end, mm")
-    hole_clearance: float = Field(0.3, ge=0.0, le=3.0,
+    min_thickness: Num = Field(1.0, ge=0.3, le=20.0, description="thickness at the thin end, mm")
+    hole_clearance: Num = Field(0.3, ge=0.0, le=3.0,
                                   description="added to each mount hole's diameter for the shim's holes, mm")
 
     @model_validator(mode="after")
@@ -108,11 +110,11 @@ class MountSpec(_Strict):
 
     side: Literal["upper", "lower"] = Field(
         "upper", description="which skin the fuselage sits on: upper (part below the fuselage) or lower")
-    pad_z: float = Field(ge=-5000.0, le=5000.0, description="datum z of the pad plane, mm")
-    pad_x: tuple[float, float] = Field(description="datum x range of the pad footprint [fore, aft], mm")
-    pad_width: float = Field(gt=1.0, le=2000.0, description="pad footprint width along y, mm")
-    pad_y: float = Field(0.0, ge=-5000.0, le=5000.0, description="datum y of the footprint centre, mm")
-    min_wall: float = Field(2.0, ge=0.3, le=50.0,
+    pad_z: Num = Field(ge=-5000.0, le=5000.0, description="datum z of the pad plane, mm")
+    pad_x: tuple[DatumMM, DatumMM] = Field(description="datum x range of the pad footprint [fore, aft], mm")
+    pad_width: Num = Field(gt=1.0, le=2000.0, description="pad footprint width along y, mm")
+    pad_y: Num = Field(0.0, ge=-5000.0, le=5000.0, description="datum y of the footprint centre, mm")
+    min_wall: Num = Field(2.0, ge=0.3, le=50.0,
                             description="least material left under the pad and below/above every hole, mm")
     hole: list[HoleSpec] = Field(default_factory=list, description="bolt holes, axes parallel to datum z")
     shim: list[ShimSpec] = Field(default_factory=list, description="printable incidence shims")
@@ -130,25 +132,25 @@ class LocatorSpec(_Strict):
     """Alignment pins across each joint: a round hole and a slotted hole in each face."""
 
     enabled: StrictBool = Field(True, description="cut locator holes at every joint")
-    pin_diameter: float = Field(3.0, ge=0.5, le=20.0, description="pin (dowel or rod) diameter, printed mm")
-    pin_length: float = Field(12.0, ge=2.0, le=100.0, description="pin length across the joint, printed mm")
-    clearance: float = Field(0.2, ge=0.0, le=2.0, description="added to the pin diameter for its holes, printed mm")
-    slot_extra: float = Field(1.5, ge=0.0, le=20.0,
+    pin_diameter: Num = Field(3.0, ge=0.5, le=20.0, description="pin (dowel or rod) diameter, printed mm")
+    pin_length: Num = Field(12.0, ge=2.0, le=100.0, description="pin length across the joint, printed mm")
+    clearance: Num = Field(0.2, ge=0.0, le=2.0, description="added to the pin diameter for its holes, printed mm")
+    slot_extra: Num = Field(1.5, ge=0.0, le=20.0,
                               description="extra length of the slotted hole along the line between pins, printed mm")
 
 
 class SparSpec(_Strict):
     """A straight channel for a round rod (e.g. carbon), running spanwise inside the part."""
 
-    diameter: float = Field(gt=0.3, le=50.0, description="rod diameter, printed mm")
-    clearance: float = Field(0.2, ge=0.0, le=2.0, description="added to the rod diameter for the channel, printed mm")
-    span: tuple[float, float] = Field(
+    diameter: Num = Field(gt=0.3, le=50.0, description="rod diameter, printed mm")
+    clearance: Num = Field(0.2, ge=0.0, le=2.0, description="added to the rod diameter for the channel, printed mm")
+    span: tuple[DatumMM, DatumMM] = Field(
         description="span positions of the rod's two ends, mm from the root reference point "
                     "(negative: port half of a mirrored part)")
-    chord: Union[float, tuple[float, float]] = Field(
+    chord: Union[Num, tuple[Num, Num]] = Field(
         description="chord fraction of the rod axis (0 leading edge, 1 trailing edge) at both ends, or "
                     "[at the first end, at the second end]")
-    height: float = Field(0.5, ge=0.05, le=0.95,
+    height: Num = Field(0.5, ge=0.05, le=0.95,
                           description="position between the lower (0) and upper (1) skin at the ends")
     mirror: StrictBool = Field(True, description="on a mirrored part, also a rod mirrored to the other half "
                                            "(when the rod does not cross the centreline)")
@@ -169,30 +171,30 @@ class SparSpec(_Strict):
         return v
 
     @property
-    def chord_ends(self) -> tuple[float, float]:
+    def chord_ends(self) -> tuple[Num, Num]:
         return self.chord if isinstance(self.chord, tuple) else (self.chord, self.chord)
 
 
 class PrintingSpec(_Strict):
     """Printable pieces: scale, splitting, locators, rod spar channels, meshes."""
 
-    scale: float = Field(1.0, ge=0.02, le=10.0, description="scale factor of the printed part (test models)")
-    min_te: Optional[float] = Field(
+    scale: Num = Field(1.0, ge=0.02, le=10.0, description="scale factor of the printed part (test models)")
+    min_te: Optional[Num] = Field(
         None, gt=0.0, le=10.0, description="thicken the trailing edge to at least this, printed mm")
-    split_at: list[float] = Field(
-        default_factory=list, description="span positions of the joints, mm from the root reference point "
+    split_at: list[DatumMM] = Field(
+        default_factory=list, max_length=MAX_SPLITS, description="span positions of the joints, mm from the root reference point "
                                           "(negative: port half of a mirrored part)")
-    build_volume: Optional[tuple[float, float, float]] = Field(
+    build_volume: Optional[tuple[DatumMM, DatumMM, DatumMM]] = Field(
         None, description="printer build volume [x, y, z], mm; without split_at the part is split "
                           "automatically so every piece fits (in an axis-aligned pose)")
     odd_count: StrictBool = Field(False, description="automatic split: an odd number of pieces, the centre piece "
                                                "carrying the mount")
-    min_wall: float = Field(1.2, ge=0.2, le=20.0,
+    min_wall: Num = Field(1.2, ge=0.2, le=20.0,
                             description="least wall around locator holes and spar channels, printed mm")
     locators: LocatorSpec = Field(default_factory=LocatorSpec, description="alignment pins across joints")
     spar: list[SparSpec] = Field(default_factory=list, description="straight rod spar channels")
     mount: StrictBool = Field(True, description="cut the [surface.mount] pad and holes into the printed part")
-    mesh_tol: float = Field(0.05, ge=0.005, le=2.0,
+    mesh_tol: Num = Field(0.05, ge=0.005, le=2.0,
                             description="STL/3MF chordal deviation from the exact surface, printed mm")
     joint_test: StrictBool = Field(True, description="also write a short slice across one joint with its locators")
 
@@ -215,9 +217,9 @@ class PrintingSpec(_Strict):
 class LaminateSpec(_Strict):
     """A core (the part offset inward by a laminate) and a two-half mould of the bare part."""
 
-    thickness: float = Field(gt=0.05, le=20.0, description="laminate thickness over the core, mm")
+    thickness: Num = Field(gt=0.05, le=20.0, description="laminate thickness over the core, mm")
     core: StrictBool = Field(True, description="write the core (sections offset inward by the laminate, re-lofted)")
-    core_min_thickness: float = Field(
+    core_min_thickness: Num = Field(
         1.0, ge=0.1, le=20.0,
         description="the core ends toward the trailing edge where its thickness falls to this, mm "
                     "(there the part is about 2 x laminate + this thick)")
@@ -225,9 +227,9 @@ class LaminateSpec(_Strict):
     parting: Literal["stations", "root-chord"] = Field(
         "stations", description="parting surface: through every section's chord line (stations), or the "
                                 "plane through the root chord line (root-chord)")
-    flange: float = Field(0.0, ge=0.0, le=500.0,
+    flange: Num = Field(0.0, ge=0.0, le=500.0,
                           description="width of a plate around the outline on the parting surface, mm (0: none)")
-    flange_thickness: float = Field(10.0, gt=0.0, le=200.0, description="plate thickness, mm")
+    flange_thickness: Num = Field(10.0, gt=0.0, le=200.0, description="plate thickness, mm")
     pose: Literal["machine", "datum"] = Field(
         "machine", description="machine: root chord plane on the machine XY plane, leading edge along X, root "
                                "leading edge at the origin, each mould half's outside up; datum: as built")
