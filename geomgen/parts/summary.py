@@ -46,7 +46,8 @@ def _mount(m: dict) -> list[str]:
 def _printing(p: dict) -> list[str]:
     bv = p.get("build_volume")
     out = [f"  printing: scale {p['scale']:g}, trailing edge {p['te_printed_mm']:.2f} printed mm; {p['split']}"
-           + (f" for a {' x '.join(f'{v:g}' for v in bv)} mm build volume" if bv else "")]
+           + (f" for a {' x '.join(f'{v:g}' for v in bv)} mm build volume less {p.get('bed_margin', 0):g} mm "
+              "each side" if bv else "")]
     for pc in p["pieces"]:
         fit = "" if pc["fits"] is None else ("  fits" if pc["fits"] else "  DOES NOT FIT")
         out.append(f"    piece {pc['index']}: span {pc['span'][0]:.1f} .. {pc['span'][1]:.1f} mm, {pc['pose']}, "
@@ -60,9 +61,14 @@ def _printing(p: dict) -> list[str]:
         out.append(f"    spar Ø{s['diameter']:g} (channel Ø{s['channel_diameter']:g}) span {s['span'][0]:g} .. "
                    f"{s['span'][1]:g} mm at {100 * s['chord'][0]:.0f} .. {100 * s['chord'][1]:.0f} % chord: least wall "
                    f"{s['wall_printed_mm']:.2f} printed mm at span {s['wall_at_y']:.1f}")
-    out.append(f"    check: pieces {_cm3(p['volume_pieces_mm3'])} + removed features {_cm3(p['volume_removed_mm3'])} = "
-               f"part {_cm3(p['volume_whole_mm3'])} (difference {100 * p['balance_error_rel']:.4f} %), "
-               "design size")
+    if "volume_bare_mesh_mm3" in p:
+        out.append(f"    check: pieces {_cm3(p['volume_pieces_mm3'])} + removed features {_cm3(p['volume_removed_mm3'])} = "
+                   f"meshed part {_cm3(p['volume_bare_mesh_mm3'])}; exact part {_cm3(p['volume_whole_mm3'])} (mesh "
+                   f"{100 * p['balance_error_rel']:.2f} % off, within its {p['mesh_tol']:g} mm tolerance), design size")
+    for pc in p["pieces"]:
+        if "overhang_mm2" in pc and not pc["needs_support"] and pc["overhang_mm2"] > 0:
+            out.append(f"    piece {pc['index']}: {pc['overhang_mm2']:.0f} mm² overhangs more than 45° "
+                       "(hole roofs and ledges the slicer bridges)")
     out += [f"    note: {n}" for n in p.get("notes", [])]
     if "joint_test" in p:
         out.append(f"    joint test slice at span {p['joint_test']['y']:.1f} mm: {', '.join(p['joint_test']['files'])}")

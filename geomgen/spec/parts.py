@@ -185,6 +185,11 @@ class PrintingSpec(_Strict):
     build_volume: Optional[tuple[float, float, float]] = Field(
         None, description="printer build volume [x, y, z], mm; without split_at the part is split "
                           "automatically so every piece fits (in an axis-aligned pose)")
+    bed_margin: float = Field(5.0, ge=0.0, le=100.0,
+                              description="clear band kept inside the build volume's x and y on every side "
+                                          "(skirt, brim, bed clips), printed mm")
+    nozzle: float = Field(0.4, ge=0.1, le=2.0,
+                          description="nozzle diameter, printed mm; features too small for it are warned about")
     odd_count: StrictBool = Field(False, description="automatic split: an odd number of pieces, the centre piece "
                                                "carrying the mount")
     min_wall: float = Field(1.2, ge=0.2, le=20.0,
@@ -202,6 +207,26 @@ class PrintingSpec(_Strict):
         if v is not None and min(v) <= 5.0:
             raise ValueError(f"must be > 5 mm on every axis, got {list(v)}")
         return v
+
+    @model_validator(mode="after")
+    def _margin(self):
+        if self.build_volume is not None and min(self.build_volume[:2]) <= 2 * self.bed_margin + 5.0:
+            raise ValueError(f"bed_margin ({self.bed_margin:g} mm each side) leaves less than 5 mm of the build "
+                             f"volume's x or y ({self.build_volume[0]:g} x {self.build_volume[1]:g} mm)")
+        return self
+
+    @property
+    def usable_volume(self) -> tuple[float, float, float] | None:
+        """The build volume less ``bed_margin`` on each side in x and y, printed mm."""
+        if self.build_volume is None:
+            return None
+        x, y, z = self.build_volume
+        return (x - 2 * self.bed_margin, y - 2 * self.bed_margin, z)
+
+    @property
+    def line_width(self) -> float:
+        """Extrusion width taken as 1.125 x the nozzle (common practice, no source), printed mm."""
+        return 1.125 * self.nozzle
 
     @field_validator("split_at")
     @classmethod
