@@ -9,7 +9,11 @@ from __future__ import annotations
 
 import json
 import math
+import re
+import shutil
+import subprocess
 import zipfile
+from pathlib import Path
 import xml.etree.ElementTree as ET
 
 import numpy as np
@@ -473,7 +477,7 @@ def _material(mesh, centre, half=0.1):
 def test_pieces_stand_on_a_flat_face_inside_the_margin_and_carry_locators(shop):
     p = shop.report["surfaces"][0]["printing"]
     usable = np.array(p["build_volume"]) - [2 * p["bed_margin"], 2 * p["bed_margin"], 0]
-    assert p["bed_margin"] == 5.0
+    assert p["bed_margin"] == 8.0  # the default
     for pc in p["pieces"]:
         mesh = trimesh.load(shop.out_dir / pc["files"][0], force="mesh")
         assert (mesh.extents <= usable + 1e-6).all()
@@ -594,3 +598,52 @@ def test_refused_geometry_writes_nothing(tmp_path):
     with pytest.raises(GeometryError, match='surface "wing" mount pad'):
         write_shop_parts(spec, tmp_path / "out")
     assert not (tmp_path / "out").exists() or not any((tmp_path / "out").rglob("*"))
+
+
+# -- a real slicer as a test client -------------------------------------------------------
+SLICER = shutil.which("prusa-slicer")
+
+
+def _info(path) -> dict:
+    r = subprocess.run([SLICER, "--info", str(path)], capture_output=True, text=True, timeout=120)
+    assert r.returncode == 0, r.stderr[-2000:]
+    return dict(tuple(s.strip() for s in line.split("=", 1)) for line in r.stdout.splitlines() if "=" in line)
+
+
+def _extrusion_xy(gcode: Path) -> np.ndarray:
+    """(x, y) of every extruding move of a G-code file."""
+    pts, x, y = [], None, None
+    for line in gcode.read_text().splitlines():
+        if line.startswith("G1"):
+            w = dict(re.findall(r"([XYE])(-?[\d.]+)", line.split(";")[0]))
+            x, y = float(w.get("X", x if x is not None else "nan")), float(w.get("Y", y if y is not None else "nan"))
+            if float(w.get("E", 0)) > 0:
+                pts.append((x, y))
+    return np.array(pts)
+
+
+@pytest.mark.slow
+@pytest.mark.skipif(SLICER is None, reason="prusa-slicer (Debian package) is not installed; .ci/run installs it")
+def test_every_piece_slices_as_written_inside_the_bed(shop, tmp_path):
+    """Each piece and the joint test, as written, is a closed mesh to the slicer (nothing to
+    repair) and slices in place (no arranging) with its skirt inside the printer's bed, the
+    bed's origin at its centre as the files are laid out."""
+    p = shop.report["surfaces"][0]["printing"]
+    bx, by, bz = p["build_volume"]
+    files = [pc["files"][0] for pc in p["pieces"]] + [p["joint_test"]["files"][0]]
+    for name in files:
+        path = shop.out_dir / name
+        info = _info(path)
+        assert info.get("manifold") == "yes", (name, info)
+        assert not {"open_edges", "facets_removed", "facets_reversed", "backwards_edges"} & set(info), (name, info)
+        out = tmp_path / (path.stem + ".gcode")
+        bed = f"{-bx / 2:g}x{-by / 2:g},{bx / 2:g}x{-by / 2:g},{bx / 2:g}x{by / 2:g},{-bx / 2:g}x{by / 2:g}"
+        r = subprocess.run([SLICER, "--export-gcode", f"--bed-shape={bed}", "--max-print-height", f"{bz:g}",
+                            "--dont-arrange", "--nozzle-diameter", "0.8", "--layer-height", "0.6",
+                            "--first-layer-height", "0.6", "--fill-density", "0%", "--perimeters", "1",
+                            "--loglevel", "2", "-o", str(out), str(path)], capture_output=True, text=True, timeout=300)
+        assert r.returncode == 0 and out.exists(), (name, r.stdout[-2000:], r.stderr[-2000:])
+        assert "repair" not in (r.stdout + r.stderr).lower(), name
+        xy = _extrusion_xy(out)
+        assert len(xy) > 100
+        assert (np.abs(xy[:, 0]) <= bx / 2).all() and (np.abs(xy[:, 1]) <= by / 2).all(), (name, xy.min(0), xy.max(0))

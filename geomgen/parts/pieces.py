@@ -108,6 +108,9 @@ def print_outputs(model, name_of, say) -> tuple[list, dict]:
                             f"more than the mesh tolerance allows ({tol * a_whole:.0f} mm³); nothing was written")
     usable = _usable(ps)
     fall = rotations24()
+    flat = [(0.0, 1.0, 0.0), (0.0, -1.0, 0.0)]  # joint and end faces (local span direction)
+    if ps.mount and pm.spec.mount is not None:  # the pad: its outward normal is datum +z on the upper side
+        flat.append(F.R.T @ np.array([0.0, 0.0, 1.0 if pm.spec.mount.side == "upper" else -1.0]))
     outs, pieces, notes = [], [], []
     n = len(made)
     A_local = s * F.R.T  # datum -> printed, before the pose's turn
@@ -116,7 +119,7 @@ def print_outputs(model, name_of, say) -> tuple[list, dict]:
         say(f"posing {name} {tag}")
         vd, fd = to_arrays(mf, defaults.MESH_SHORT_EDGE_MM)
         vl = (vd - F.position) @ A_local.T
-        po = choose(vl, fd, usable, fall)
+        po = choose(vl, fd, usable, fall, flat)
         vp = vl @ po.R.T + po.t
         _check_mesh(vp, fd, f"{what} {tag}")
         A, t = po.R @ A_local, po.t - po.R @ A_local @ F.position

@@ -19,8 +19,6 @@ OVERHANG_DEG = 45.0
 #: a piece whose overhang is at most this share of its surface (holes' roofs, small ledges) is
 #: bridged by the slicer without support (common practice, no source)
 SUPPORT_SHARE = 0.01
-#: a flat face must carry at least this share of the largest flat face's area to be a candidate
-MIN_FACE_SHARE = 0.05
 
 
 @dataclass
@@ -47,31 +45,21 @@ def _tri(v, f):
     return n, a, p0
 
 
-def flat_faces(v, f, tol=1e-4) -> list[tuple[np.ndarray, float]]:
-    """(outward unit normal, area) of the planar faces that the whole piece lies behind (a
-    piece can stand on them), largest first."""
+def flat_faces(v, f, normals, tol=1e-4) -> list[tuple[np.ndarray, float]]:
+    """(outward unit normal, area) of the design's flat faces (``normals``: their outward
+    directions, e.g. the joint faces and the pad) that the whole piece lies behind, so it can
+    stand on them, largest first. Only design faces count: on a faceted mesh every facet of a
+    convex skin is a supporting plane, but a piece laid on one touches the bed along a line."""
     n, a, p0 = _tri(v, f)
-    key = np.round(n / 1e-5).astype(np.int64)
     out = []
-    _, inv = np.unique(key, axis=0, return_inverse=True)
-    inv = inv.ravel()
-    for g in np.unique(inv):
-        idx = np.nonzero(inv == g)[0]
-        area = a[idx].sum()
-        nn = (n[idx] * a[idx, None]).sum(axis=0)
-        if np.linalg.norm(nn) < 1e-12:
-            continue
-        nn /= np.linalg.norm(nn)
-        d = p0[idx] @ nn
-        top = d.max()
-        on = idx[d > top - tol]
-        if (v @ nn).max() > top + tol:
-            continue  # material beyond this plane: the piece cannot rest on it
-        out.append((nn, float(a[on].sum())))
+    for nn in normals:
+        nn = np.asarray(nn, float) / np.linalg.norm(nn)
+        top = (v @ nn).max()
+        on = (n @ nn > 1 - 1e-9) & (p0 @ nn > top - tol)
+        if on.any():
+            out.append((nn, float(a[on].sum())))
     out.sort(key=lambda o: -o[1])
-    if not out:
-        return []
-    return [o for o in out if o[1] >= MIN_FACE_SHARE * out[0][1]]
+    return out
 
 
 def _down(nrm) -> np.ndarray:
@@ -120,13 +108,13 @@ def _fit(w, usable):
     return size, (None if usable is None else bool((size <= np.asarray(usable) + 1e-6).all()))
 
 
-def choose(v, f, usable, fallbacks=()) -> Pose:
+def choose(v, f, usable, fallbacks=(), normals=((0, 1, 0), (0, -1, 0))) -> Pose:
     """The pose of the mesh (printed mm) for a usable volume [x, y, z] (None: no limit).
 
-    Flat faces first: one that fits, then one needing no support, then the largest contact;
+    ``normals``: outward directions of the design's flat faces. Flat faces first: one that fits, then one needing no support, then the largest contact;
     ``fallbacks``: rotations tried when no flat face gives a pose that fits."""
     cands = []
-    for nrm, area in flat_faces(v, f):
+    for nrm, area in flat_faces(v, f, normals):
         R0 = _down(nrm)
         w0 = v @ R0.T
         for yaw in _yaws(w0[:, :2]):

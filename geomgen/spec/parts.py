@@ -185,7 +185,7 @@ class PrintingSpec(_Strict):
     build_volume: Optional[tuple[float, float, float]] = Field(
         None, description="printer build volume [x, y, z], mm; without split_at the part is split "
                           "automatically so every piece fits (in an axis-aligned pose)")
-    bed_margin: float = Field(5.0, ge=0.0, le=100.0,
+    bed_margin: float = Field(8.0, ge=0.0, le=100.0,
                               description="clear band kept inside the build volume's x and y on every side "
                                           "(skirt, brim, bed clips), printed mm")
     nozzle: float = Field(0.4, ge=0.1, le=2.0,
