@@ -1,5 +1,5 @@
-"""Printable pieces: each piece lofted from the part's skin between its joints (the skin cut
-exactly at the joint spans) and meshed watertight by the kernel; its features are then cut
+"""Printable pieces: each piece meshed watertight straight from the part's skin between its
+joints (:mod:`.skinmesh`, within the mesh tolerance, measured); its features are then cut
 from that mesh with mesh booleans (:mod:`.meshcut`), and it is laid on the bed in a pose that
 prints (:mod:`.pose`). A joint test slice across one joint is cut from the pieces the same way.
 
@@ -14,15 +14,15 @@ import numpy as np
 
 from .. import defaults
 from ..errors import GeometryError
+from ..geometry.slices import skin_volume_centroid
 from .frame import Frame, rotations24
 from .meshcut import cut_features, from_arrays, slab, to_arrays
 from .mount import plan_mount
 from .output import shop_output
 from .pose import choose
 from .printing import plan_printing, printing_model
-from ..cad.loft import area_mm2, solid_from_skin, volume_mm3
-from ..cad.mesh import closed, mesh
-from ..cad.ops import sub_skin
+from ..cad.mesh import closed
+from .skinmesh import piece_mesh
 
 
 #: A printed edge thinner than this is one line of a common nozzle or less (common practice,
@@ -86,13 +86,12 @@ def print_outputs(model, name_of, say) -> tuple[list, dict]:
     F = Frame.of(pm)
     say(f"cutting the printed pieces of {name}")
     te_open = pm.te_open
-    whole = solid_from_skin(pm.skin, te_open=te_open, name=name)
-    v_whole, a_whole = volume_mm3(whole), area_mm2(whole)
+    v_whole, a_whole = skin_volume_centroid(pm.skin)[0], pm.skin.area()  # exact integrals of the skin
     made, removed, v_bare = [], 0.0, 0.0
     for pc in plan.pieces:
         a, b = pc.span
         pw = f"{what} piece {pc.index + 1}"
-        v, f = mesh(solid_from_skin(sub_skin(pm.skin, a, b), te_open=te_open, name=pw), tol, pw)
+        v, f = piece_mesh(pm.skin, a, b, tol, te_open, F.span_axis, pw)
         mf = from_arrays(v, f, pw)
         v_bare += mf.volume()
         tl = [t for t in plan.tools if _overlaps(t, F, a, b)]
