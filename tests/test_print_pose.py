@@ -122,3 +122,30 @@ def test_nozzle_warnings_name_the_features_a_printer_cannot_make():
     # a 0.2 mm nozzle makes them: no locator or wall warning
     fine = ps.model_copy(update={"nozzle": 0.2})
     assert not [n for n in nozzle_notes(plan, fine) if "locator" in n]
+
+
+def test_piece_mesh_from_the_skin_is_closed_and_within_its_tolerance_of_the_surface():
+    """Random points of the exact skin lie within the tolerance of the mesh (brute-force point
+    to triangle distances), and the mesh's volume is the exact skin volume less at most
+    tolerance x area (a chord of a convex surface lies inside it)."""
+    from geomgen.cad.mesh import closed
+    from geomgen.geometry import build_models
+    from geomgen.geometry.slices import skin_volume_centroid
+    from geomgen.parts.frame import Frame
+    from geomgen.parts.skinmesh import _point_triangle, piece_mesh
+    from geomgen.spec.load import load_spec_text
+
+    (m,) = build_models(load_spec_text((ROOT / "specs/demo-stabilizer-shop.toml").read_text()))
+    tol = 0.05
+    v, f = piece_mesh(m.skin, m.y_range[0], m.y_range[1], tol, m.te_open, Frame.of(m).span_axis, "t")
+    assert closed(f)
+    p0, p1, p2 = v[f[:, 0]], v[f[:, 1]], v[f[:, 2]]
+    vol = float(np.einsum("ij,ij->i", p0, np.cross(p1, p2)).sum() / 6.0)
+    exact = skin_volume_centroid(m.skin)[0]
+    assert 0 <= exact - vol <= tol * m.skin.area()
+    rng = np.random.default_rng(1)
+    u = rng.uniform(*m.skin.u_range, 60)
+    w = rng.uniform(*m.y_range, 8)
+    pts = m.skin.evaluate(u, w).reshape(-1, 3)
+    d = np.array([_point_triangle(np.broadcast_to(q, p0.shape), p0, p1, p2).min() for q in pts])
+    assert d.max() <= tol

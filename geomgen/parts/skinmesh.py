@@ -59,7 +59,7 @@ def _grid(skin, a, b, tol, te_open):
     tv = np.linspace(a, b, SAMPLES)
     kv = [k for k, c in zip(*np.unique(skin.tv, return_counts=True)) if a < k < b and c >= skin.dv]
     tv = np.unique(np.concatenate([tv, kv]))
-    lines_v = np.unique(np.concatenate([np.linspace(a, b, 5), kv]))
+    lines_v = np.unique(np.concatenate([np.linspace(a, b, 9), kv]))
     us = _nodes(tu, skin.evaluate(tu, lines_v).transpose(1, 0, 2), tol)
     vs = _nodes(tv, skin.evaluate(np.linspace(u0, u1, 41), tv), tol, must=kv)
     return us, vs
@@ -121,17 +121,19 @@ def piece_mesh(skin, a: float, b: float, tol: float, te_open: bool, span_axis, w
 
 
 def _deviation(skin, us, vs, V, nu, nv, te_open) -> float:
-    """Largest distance from the skin to the mesh, measured at each cell's centre parameter
-    against the cell's two triangles (the nearer of them)."""
-    um = 0.5 * (us[:-1] + us[1:])
-    vm = 0.5 * (vs[:-1] + vs[1:])
-    S = skin.evaluate(um, vm)  # (nu-1) x (nv-1) x 3
+    """Largest distance from the skin to the mesh, measured at nine points inside each cell
+    (quarter, half and three-quarter parameters) against the cell's two triangles."""
     G = V.reshape(nu, nv, 3)
-    cells = [(G[:-1, :-1], G[1:, :-1], G[1:, 1:]), (G[:-1, :-1], G[1:, 1:], G[:-1, 1:])]
-    best = np.full(S.shape[:2], np.inf)
-    for A, B, C in cells:
-        best = np.minimum(best, _point_triangle(S, A, B, C))
-    return float(best.max())
+    A, B, C, D = G[:-1, :-1], G[1:, :-1], G[1:, 1:], G[:-1, 1:]
+    return max(_cells(skin, us, vs, fu, fv, A, B, C, D) for fu in (0.25, 0.5, 0.75) for fv in (0.25, 0.5, 0.75))
+
+
+def _cells(skin, us, vs, fu, fv, A, B, C, D) -> float:
+    u = us[:-1] + fu * np.diff(us)
+    v = vs[:-1] + fv * np.diff(vs)
+    S = skin.evaluate(u, v)  # cell (i, j) -> S[i, j]: u of column i, v of row j
+    d = np.minimum(_point_triangle(S, A, B, C), _point_triangle(S, A, C, D))
+    return float(d.max())
 
 
 def _point_triangle(p, a, b, c):
