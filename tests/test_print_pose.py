@@ -88,7 +88,9 @@ def test_bed_margin_is_kept_by_the_automatic_split_and_cannot_eat_the_bed():
     from geomgen.spec.load import load_spec_text
 
     text = (ROOT / "specs/demo-stabilizer-shop.toml").read_text()
-    text = text.replace("split_at = [-100.0, 100.0]", "build_volume = [120.0, 120.0, 120.0]\nbed_margin = 10.0")
+    text = text.replace("build_volume = [180.0, 180.0, 180.0]", "build_volume = [120.0, 120.0, 120.0]\nbed_margin = 10.0")
+    text = text.replace("pin_diameter = 2.0", "enabled = false")  # thin outer joints: no room for pins
+    assert "bed_margin = 10.0" in text
     (m,) = build_models(load_spec_text(text))
     ps = m.spec.printing
     assert ps.usable_volume == (100.0, 100.0, 120.0)
@@ -104,17 +106,22 @@ def test_bed_margin_is_kept_by_the_automatic_split_and_cannot_eat_the_bed():
 
 
 def test_nozzle_warnings_name_the_features_a_printer_cannot_make():
-    """The shipped shop demo at half scale: Ø1.2 mm locator holes with 0.8 mm walls at a
-    0.4 mm nozzle (the issue's case), and a 0.25 mm printed trailing edge."""
+    """The issue's case: the shop stabilizer at half scale with Ø1.0 mm pins (Ø1.2 mm
+    locator holes) and thin walls at a 0.4 mm nozzle, and a 0.25 mm printed trailing edge."""
     from geomgen.geometry import build_models
     from geomgen.parts.pieces import nozzle_notes
     from geomgen.parts.printing import plan_printing, printing_model
     from geomgen.spec.load import load_spec_text
 
-    (m,) = build_models(load_spec_text((ROOT / "specs/demo-stabilizer-shop.toml").read_text()))
+    text = (ROOT / "specs/demo-stabilizer-shop.toml").read_text()
+    text = text.replace("build_volume = [180.0, 180.0, 180.0]", "scale = 0.5\nsplit_at = [-45.0, 45.0]\nmin_wall = 0.7")
+    text = text.replace("min_te = 0.9 ", "# ").replace("pin_diameter = 2.0", "pin_diameter = 1.0")
+    (m,) = build_models(load_spec_text(text))
     ps = m.spec.printing
+    assert ps.min_te is None and ps.scale == 0.5
     pm, _ = printing_model(m, ps)
     plan = plan_printing(pm, ps)
+    assert not plan.problems and len(plan.joints) == 2
     notes = nozzle_notes(plan, ps)
     assert any("trailing edge is 0.25 mm" in n for n in notes)
     assert any("locator holes" in n and "Ø1.20 mm" in n for n in notes)
@@ -122,6 +129,10 @@ def test_nozzle_warnings_name_the_features_a_printer_cannot_make():
     # a 0.2 mm nozzle makes them: no locator or wall warning
     fine = ps.model_copy(update={"nozzle": 0.2})
     assert not [n for n in nozzle_notes(plan, fine) if "locator" in n]
+    # the shipped demo (full size, thickened edge, Ø2 mm pins) draws no nozzle warning
+    (d,) = build_models(load_spec_text((ROOT / "specs/demo-stabilizer-shop.toml").read_text()))
+    dm, _ = printing_model(d, d.spec.printing)
+    assert nozzle_notes(plan_printing(dm, d.spec.printing), d.spec.printing) == []
 
 
 def test_piece_mesh_from_the_skin_is_closed_and_within_its_tolerance_of_the_surface():
