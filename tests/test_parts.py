@@ -565,6 +565,7 @@ def test_mould_halves_add_up_to_the_part_and_lie_in_the_machining_pose(shop):
     for h in mould["halves"]:
         solid = _one(shop.out_dir / h["file"])
         total += volume_mm3(solid) - h["plate_mm3"]
+        assert h["volume_written_mm3"] == pytest.approx(volume_mm3(solid), rel=1e-6)  # the file's own volume
         T = np.array(h["datum_to_file"])
         lem, tem = (T[:3, :3] @ p + T[:3, 3] for p in (le, te))
         assert np.allclose(lem, 0.0, atol=1e-6)  # root leading edge at the machine origin

@@ -13,6 +13,7 @@ from .mould import parting_skin, plate_box, root_frame
 from ..cad.loft import solid_from_skin, volume_mm3
 from ..cad.ops import centroid, checked, fuse, make_tool, plane_face, prepared, skin_face, split, transformed
 from .output import shop_output
+from .undercut import undercut_words, undercuts
 
 
 def _matrix(B, t) -> list[list[float]]:
@@ -66,7 +67,9 @@ def laminate_outputs(model, solid, name_of, say) -> tuple[list, dict]:
         if abs(sum(vh) - v) > defaults.SHOP_VOLUME_BALANCE_REL * v:
             raise GeometryError(f"{what}: the halves ({sum(vh):.0f} mm³) do not add up to the part ({v:.0f} mm³); "
                                 "nothing was written")
-        rep["mould"] = {"parting": lam.parting, "volume_part_mm3": v, "halves": []}
+        found = undercuts(model, skin, rf, lam.parting)
+        rep["mould"] = {"parting": lam.parting, "volume_part_mm3": v, "halves": [], "undercut": found,
+                        "notes": undercut_words(name, lam.parting, found)}
         for half, body in zip(("upper", "lower"), halves):
             plate_v = 0.0
             if lam.flange > 0:
@@ -84,7 +87,7 @@ def laminate_outputs(model, solid, name_of, say) -> tuple[list, dict]:
             fname = name_of("mould", half, suffix=".step")
             outs.append(shop_output(fname, "step", [(f"{name}-mould-{half}", posed)]))
             rep["mould"]["halves"].append({"half": half, "volume_mm3": vh[0 if half == "upper" else 1],
-                                           "plate_mm3": plate_v,
+                                           "plate_mm3": plate_v, "volume_written_mm3": volume_mm3(posed),
                                            "datum_to_file": _matrix(B, t), "file": fname})
         rep["mould"]["flange"] = {"width": lam.flange, "thickness": lam.flange_thickness} if lam.flange else None
     return outs, rep

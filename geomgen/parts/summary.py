@@ -90,7 +90,11 @@ def _laminate(lam: dict) -> list[str]:
         out.append(f"    mould halves ({m['parting']} parting): upper {_cm3(hv['upper']['volume_mm3'])} + lower "
                    f"{_cm3(hv['lower']['volume_mm3'])} = part {_cm3(m['volume_part_mm3'])}"
                    + (f"; flange {fl['width']:g} mm wide, {fl['thickness']:g} mm thick" if fl else ""))
+        if "volume_written_mm3" in hv["upper"]:
+            out.append(f"      as written (with the flange plate): upper {_cm3(hv['upper']['volume_written_mm3'])}, "
+                       f"lower {_cm3(hv['lower']['volume_written_mm3'])}")
         out.append(f"      {hv['upper']['file']}, {hv['lower']['file']}")
+        out += [f"      WARNING: {w}" for w in m.get("notes", [])]
     return out
 
 
