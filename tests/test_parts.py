@@ -552,29 +552,41 @@ def test_core_lies_a_laminate_inside_the_skin(shop):
 
 
 @pytest.mark.slow
-def test_mould_halves_add_up_to_the_part_and_lie_in_the_machining_pose(shop):
+def test_moulds_are_stock_blocks_less_the_part_registered_and_tightly_bounded(shop):
+    """Each mould half read back: the stock block less its half of the part (cavity volumes add
+    up to the part, measured apart), the file's volume as reported, dowel and bolt holes
+    through both halves at the same datum places, the parting face up with the root leading
+    edge at the machine origin, and a CAD program's default bounding box that of the block."""
     from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.cad.loft import volume_mm3
+    from geomgen.cad.ops import bbox, loose_bbox
     from geomgen.parts.mould import chord_points
 
     m = models()["wing"]
     whole = volume_mm3(Part(m).solid)
     mould = shop.report["surfaces"][0]["laminate"]["mould"]
-    total = 0.0
+    assert sum(h["cavity_mm3"] for h in mould["halves"]) == pytest.approx(whole, rel=1e-3)
     le, te = chord_points(m.skin, 0.0)
     for h in mould["halves"]:
         solid = _one(shop.out_dir / h["file"])
-        total += volume_mm3(solid) - h["plate_mm3"]
-        assert h["volume_written_mm3"] == pytest.approx(volume_mm3(solid), rel=1e-6)  # the file's own volume
+        assert volume_mm3(solid) == pytest.approx(h["volume_written_mm3"], rel=1e-4)  # through a STEP round trip
+        bmin, bmax = bbox(solid)
+        assert np.allclose(bmax - bmin, h["stock_size_mm"], atol=1e-3)
+        lmin, lmax = loose_bbox(solid)
+        assert (bmin - lmin).max() < 3.0 and (lmax - bmax).max() < 3.0  # no far-reaching control net
         T = np.array(h["datum_to_file"])
         lem, tem = (T[:3, :3] @ p + T[:3, 3] for p in (le, te))
         assert np.allclose(lem, 0.0, atol=1e-6)  # root leading edge at the machine origin
-        assert abs(tem[0]) < 1e-6 and abs(tem[2]) < 1e-6 and tem[1] > 140  # chord along +Y on the XY plane
-        from geomgen.cad.ops import bbox
-
-        bmin, bmax = bbox(solid)
-        assert bmax[2] > 5 and bmin[2] < -9.9  # outside up, flange plate below the parting plane
-    assert total == pytest.approx(whole, rel=1e-3)
+        assert abs(tem[2]) < 1e-6  # on the parting plane at the root
+        # the parting face up (it follows the 8 mm anhedral), the block 15 mm (default) behind the cavity below
+        assert 0 <= bmax[2] < 8.5 and bmin[2] < -15
+        for hole in mould["holes"]:
+            p = T[:3, :3] @ np.array(hole["datum"]) + T[:3, 3]
+            segs = _segments_along_z(solid, p[0], p[1])
+            assert segs == [], (h["half"], hole)  # the hole runs through the whole block
+            q = p + [0.5 * hole["diameter"] + 1.0, 0, 0]
+            assert _segments_along_z(solid, q[0], q[1]), (h["half"], hole)  # material beside it
+    assert len([x for x in mould["holes"] if x["kind"] == "dowel"]) == 4
 
 
 @pytest.mark.slow

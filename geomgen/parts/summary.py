@@ -87,13 +87,21 @@ def _laminate(lam: dict) -> list[str]:
     if m:
         hv = {h["half"]: h for h in m["halves"]}
         fl = m.get("flange")
-        out.append(f"    mould halves ({m['parting']} parting): upper {_cm3(hv['upper']['volume_mm3'])} + lower "
-                   f"{_cm3(hv['lower']['volume_mm3'])} = part {_cm3(m['volume_part_mm3'])}"
-                   + (f"; flange {fl['width']:g} mm wide, {fl['thickness']:g} mm thick" if fl else ""))
-        if "volume_written_mm3" in hv["upper"]:
-            out.append(f"      as written (with the flange plate): upper {_cm3(hv['upper']['volume_written_mm3'])}, "
-                       f"lower {_cm3(hv['lower']['volume_written_mm3'])}")
-        out.append(f"      {hv['upper']['file']}, {hv['lower']['file']}")
+        out.append(f"    two-part mould ({m['parting']} parting): part halves {_cm3(hv['upper']['volume_mm3'])} upper + "
+                   f"{_cm3(hv['lower']['volume_mm3'])} lower = part {_cm3(m['volume_part_mm3'])}"
+                   + (f"; flange {fl['width']:g} mm, {fl['thickness']:g} mm behind the cavity" if fl else ""))
+        for h in m["halves"]:
+            if "stock_size_mm" in h:
+                out.append(f"      {h['half']} mould: stock {' x '.join(f'{v:.1f}' for v in h['stock_size_mm'])} mm, cavity "
+                           f"{_cm3(h['cavity_mm3'])}, solid as written {_cm3(h['volume_written_mm3'])}; {h['file']}")
+            else:
+                out.append(f"      {h['half']}: {h['file']}")
+        holes = m.get("holes") or []
+        if holes:
+            dw = [h for h in holes if h["kind"] == "dowel"]
+            bo = [h for h in holes if h["kind"] == "bolt"]
+            out.append(f"      {len(dw)} dowel holes Ø{dw[0]['diameter']:g} and {len(bo)} bolt holes Ø{bo[0]['diameter']:g} "
+                       "through both halves (positions in the report)")
         out += [f"      WARNING: {w}" for w in m.get("notes", [])]
     return out
 

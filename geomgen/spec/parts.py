@@ -246,13 +246,23 @@ class LaminateSpec(_Strict):
         1.0, ge=0.1, le=20.0,
         description="the core ends toward the trailing edge where its thickness falls to this, mm "
                     "(there the part is about 2 x laminate + this thick)")
-    mould: StrictBool = Field(True, description="write the part split into upper and lower mould halves")
+    mould: StrictBool = Field(True, description="write a two-part female mould: a stock block per half less the part")
     parting: Literal["stations", "root-chord"] = Field(
         "stations", description="parting surface: through every section's chord line (stations), or the "
                                 "plane through the root chord line (root-chord)")
-    flange: float = Field(0.0, ge=0.0, le=500.0,
-                          description="width of a plate around the outline on the parting surface, mm (0: none)")
-    flange_thickness: float = Field(10.0, gt=0.0, le=200.0, description="plate thickness, mm")
+    flange: float = Field(25.0, ge=0.0, le=500.0,
+                          description="width of the mould block beyond the part's outline on the parting "
+                                      "surface (the flange carrying the pins and bolts), mm")
+    flange_thickness: float = Field(15.0, gt=0.0, le=200.0,
+                                    description="least mould material behind the cavity (block depth beyond the "
+                                                "part's highest point), mm")
+    pin_diameter: float = Field(6.0, ge=1.0, le=30.0,
+                                description="registration dowel holes through both halves near the four corners, "
+                                            "mm (0 flange: none)")
+    bolt_diameter: float = Field(6.6, ge=1.0, le=30.0,
+                                 description="bolt clearance holes through both halves' flange, mm (6.6: M6)")
+    bolt_spacing: float = Field(100.0, ge=20.0, le=1000.0,
+                                description="largest distance between bolt holes along each long side, mm")
     pose: Literal["machine", "datum"] = Field(
         "machine", description="machine: root chord plane on the machine XY plane, leading edge along X, root "
                                "leading edge at the origin, each mould half's outside up; datum: as built")
