@@ -79,3 +79,7 @@ SHOP_VOLUME_BALANCE_REL = 1e-3
 #: shorter than min(this, 5 % of the chordal tolerance) are collapsed (single-precision STL).
 MESH_MERGE_TOL_MM = 1e-5
 MESH_SHORT_EDGE_MM = 1e-3
+
+#: A mounting pad flat over less of its footprint than this is warned about: the fuselage
+#: then bears on a small patch (common practice, no source).
+PAD_CONTACT_WARN = 0.5

@@ -181,6 +181,46 @@ def test_pad_on_the_lower_skin_measures_toward_the_upper_skin():
     assert box.kind == "box" and box.origin[2] + box.length == pytest.approx(-35.5)  # removes below the pad
 
 
+def test_pad_above_the_skin_names_the_true_nearest_and_farthest_gaps_and_the_skin_heights():
+    import re as _re
+
+    from geomgen.parts.mount import plan_mount
+
+    m = models()["wing"]
+    ms = m.spec.mount.model_copy(update={"pad_z": -5.0})
+    plan = plan_mount(m, ms)
+    msg = [p for p in plan.problems if "does not reach" in p][0]
+    near, far, z0, z1 = map(float, _re.search(r"nearest ([\d.]+) mm away, farthest ([\d.]+) mm\); the upper skin over "
+                                              r"the footprint lies at z = (-?[\d.]+) \.\. (-?[\d.]+) mm", msg).groups())
+    # measured apart: the upper skin's height on a dense grid over the footprint
+    from geomgen.parts.frame import line_crossings, section_datum_xz
+
+    x0, x1 = ms.pad_x
+    hs = []
+    for y in np.linspace(-20.0, 20.0, 41):
+        _, hi = line_crossings(section_datum_xz(m, float(y), 400), np.linspace(x0, x1, 221))
+        hs += list(hi[~np.isnan(hi)])
+    assert near == pytest.approx(-5.0 - max(hs), abs=0.02) and far == pytest.approx(-5.0 - min(hs), abs=0.02)
+    assert (z0, z1) == (pytest.approx(min(hs), abs=0.02), pytest.approx(max(hs), abs=0.02))
+    assert near < far
+
+
+def test_pad_auto_seats_for_the_contact_asked_and_a_partial_contact_is_warned():
+    from geomgen.parts.mount import plan_mount
+
+    m = models()["wing"]
+    for target in (0.3, 0.6, 0.9):
+        plan = plan_mount(m, m.spec.mount.model_copy(update={"pad_z": "auto", "pad_contact": target}))
+        pad = plan.report["pad"]
+        assert pad["flat_fraction"] == pytest.approx(target, abs=3.0 / (61 * 31))  # the grid: ties of equal height
+        assert pad["auto"] == {"contact_target": target}
+        assert bool(pad["notes"]) == (target < 0.5), pad["notes"]
+    # the same pad given by hand at the auto height gives the same result
+    z = plan.report["pad"]["z"]
+    again = plan_mount(m, m.spec.mount.model_copy(update={"pad_z": z}))
+    assert again.report["pad"]["flat_fraction"] == pytest.approx(0.9, abs=1e-3)
+
+
 def test_spar_channel_leaving_the_skin_is_refused():
     from geomgen.parts.printing import plan_spars
 
@@ -596,7 +636,7 @@ def test_summary_names_the_files_the_shims_and_the_caution(shop):
     text = format_parts_summary(shop)
     assert "tw-wing-shim-minus0.5deg.stl" in text and "thick end forward" in text
     assert "piece 2:" in text and "fits" in text and "CAUTION" in text
-    assert "mount: pad at datum z = -20 mm" in format_parts_summary(shop.out_dir / "report/tw-parts.json")
+    assert "mount: pad at datum z = -20.00 mm" in format_parts_summary(shop.out_dir / "report/tw-parts.json")
     manifest = json.loads((shop.out_dir / "geomgen-manifest.json").read_text())
     assert {f["name"] for f in manifest["files"]} == {p.relative_to(shop.out_dir).as_posix() for p in shop}
     assert {"report/tw-parts.json", "report/tw-parts.txt"} <= {f["name"] for f in manifest["files"]}

@@ -16,10 +16,16 @@ def _cm3(v: float) -> str:
 def _mount(m: dict) -> list[str]:
     p = m["pad"]
     far = "lower" if p["side"] == "upper" else "upper"
-    out = [f"  mount: pad at datum z = {p['z']:g} mm on the {p['side']} skin, x {p['x'][0]:g} .. {p['x'][1]:g}, "
-           f"y {p['y'][0]:g} .. {p['y'][1]:g} mm",
-           f"    flat over {100 * p['flat_fraction']:.0f} % of the footprint (deepest cut {p['max_cut_mm']:.2f} mm, "
-           f"largest gap to the skin {p['max_gap_mm']:.2f} mm)"]
+    auto = p.get("auto")
+    out = [f"  mount: pad at datum z = {p['z']:.2f} mm on the {p['side']} skin"
+           + (f" (auto: {100 * auto['contact_target']:.0f} % contact)" if auto else "")
+           + f", x {p['x'][0]:g} .. {p['x'][1]:g}, y {p['y'][0]:g} .. {p['y'][1]:g} mm",
+           f"    flat over {100 * p['flat_fraction']:.0f} % of the footprint (deepest cut {p['max_cut_mm']:.2f} mm"
+           + (f", gaps to the skin {p['min_gap_mm']:.2f} .. {p['max_gap_mm']:.2f} mm" if p.get("min_gap_mm") is not None
+              else "")
+           + (f"; skin at z = {p['skin_z_range'][0]:.2f} .. {p['skin_z_range'][1]:.2f} mm" if p.get("skin_z_range") else "")
+           + ")"]
+    out += [f"    WARNING: {n}" for n in p.get("notes", [])]
     if "wall_mm" in p:
         out.append(f"    least wall under the pad {p['wall_mm']:.2f} mm to the {far} skin at x = {p['wall_at'][0]:.1f}, "
                    f"y = {p['wall_at'][1]:.1f} (min_wall {m['min_wall_mm']:g})")

@@ -11,7 +11,7 @@ printed mm and do not scale with ``printing.scale``.
 
 from __future__ import annotations
 
-from typing import Literal, Optional, Union
+from typing import Annotated, Literal, Optional, Union
 
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator, model_validator
 
@@ -108,7 +108,11 @@ class MountSpec(_Strict):
 
     side: Literal["upper", "lower"] = Field(
         "upper", description="which skin the fuselage sits on: upper (part below the fuselage) or lower")
-    pad_z: float = Field(ge=-5000.0, le=5000.0, description="datum z of the pad plane, mm")
+    pad_z: Union[Annotated[float, Field(ge=-5000.0, le=5000.0)], Literal["auto"]] = Field(
+        description='datum z of the pad plane, mm; or "auto": the height at which the pad touches '
+                    "pad_contact of its footprint")
+    pad_contact: float = Field(0.6, ge=0.05, le=1.0,
+                               description='share of the footprint made flat when pad_z = "auto"')
     pad_x: tuple[float, float] = Field(description="datum x range of the pad footprint [fore, aft], mm")
     pad_width: float = Field(gt=1.0, le=2000.0, description="pad footprint width along y, mm")
     pad_y: float = Field(0.0, ge=-5000.0, le=5000.0, description="datum y of the footprint centre, mm")
