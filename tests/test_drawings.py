@@ -322,4 +322,4 @@ print(len(files))
 """
     res = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT)
     assert res.returncode == 0, res.stderr
-    assert int(res.stdout) == 6  # templates dxf + svg, offsets csv, one panel txt + dxf, the summary
+    assert int(res.stdout) == 7  # templates dxf + svg + pdf, offsets csv, one panel txt + dxf, the summary

@@ -20,7 +20,7 @@ from typing import Callable
 
 from .. import CAUTION, __version__
 from ..errors import SpecError
-from . import hotwire, offsets, svg, templates
+from . import hotwire, offsets, pdf, svg, templates
 from .common import cuts_of, position_problems, shop_of, upper_side
 
 __all__ = ["write_shop_drawings", "format_shop_summary", "ShopFiles", "SurfaceSummary"]
@@ -102,6 +102,11 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
                    lambda p, cuts=cuts, common=common, layout=layout, shop=shop:
                    svg.write_templates_svg(cuts, p, **common, **layout, margin=shop.template_margin_mm),
                    f"{m.name}: 1:1 section templates to print at 100 % (check the rulers)"),
+            Output(name("templates", suffix=".pdf"), "file",
+                   lambda p, cuts=cuts, common=common, shop=shop:
+                   pdf.write_templates_pdf(cuts, p, **common, height=shop.label_height_mm, paper=shop.paper,
+                                           overlap=shop.tile_overlap_mm),
+                   f"{m.name}: section templates to print at 100 % on {shop.paper} (tiled with crosses where larger)"),
             Output(name("offsets", suffix=".csv"), "file",
                    lambda p, tables=tables, common=common: offsets.write_offsets_csv(tables, p, **common),
                    f"{m.name}: offset table, heights above and below the chord line (mm)")]

@@ -9,7 +9,7 @@ when the drawings are made, because only the geometry knows the tip.
 
 from __future__ import annotations
 
-from typing import Annotated, Optional
+from typing import Literal, Annotated, Optional
 
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator
 
@@ -46,6 +46,10 @@ class ShopSpec(BaseModel):
         0.002, ge=0.0005, le=0.1,
         description="largest gap between a drawn template outline (polyline) and the true section, mm")
     label_height_mm: float = Field(3.0, ge=1.0, le=20.0, description="text height of template labels, mm")
+    paper: Literal["A4", "Letter", "A3"] = Field(
+        "A4", description="paper of the print-ready PDF templates (one template a page, tiled when larger)")
+    tile_overlap_mm: float = Field(15.0, ge=5.0, le=60.0,
+                                   description="overlap of neighbouring tiles of a PDF template, mm")
 
     # -- offset tables ------------------------------------------------------------
     offset_pct: list[ChordPct] = Field(
