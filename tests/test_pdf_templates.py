@@ -97,3 +97,11 @@ def test_a_large_template_is_tiled_with_overlap_and_crosses_on_both_pages(tmp_pa
         assert len(inside) >= 2, (k, x, z)
     boxes, streams = _pages(tmp_path / "t.pdf")
     assert len(boxes) == len(pages)
+
+
+def test_section_labels_say_in_words_what_was_done_to_the_section():
+    from geomgen.sections.naca import naca
+
+    a, b = naca("2412"), naca("0009")
+    assert a.scaled_thickness(0.874526).label == "NACA 2412, thickness scaled to 87.5%"
+    assert a.blended(b, 0.5).label == "NACA 2412 blended 50% toward NACA 0009"
