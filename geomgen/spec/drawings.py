@@ -73,6 +73,17 @@ class ShopSpec(BaseModel):
     hotwire_corner_points: int = Field(
         7, ge=2, le=64,
         description="points on the rounded wire path around each trailing-edge corner when kerf_mm > 0")
+    machine_width_mm: float = Field(
+        1000.0, gt=50.0, le=5000.0, description="four-axis foam cutter: distance between its two towers, mm")
+    block_from_left_mm: Optional[float] = Field(
+        None, ge=0.0, le=5000.0,
+        description="distance from the X/Y tower to the panel's first block face, mm (default: centred)")
+    feed_mm_min: float = Field(150.0, gt=1.0, le=5000.0, description="cutting feed rate, mm/min")
+    lead_mm: float = Field(10.0, ge=1.0, le=200.0,
+                           description="straight lead-in and lead-out of the wire behind the trailing edge, mm")
+    cut_tol_mm: float = Field(0.5, gt=0.0, le=20.0,
+                              description="a panel whose straight cut strays further than this from the surface "
+                                          "halfway along it is flagged, mm")
 
     @field_validator("templates_at")
     @classmethod
