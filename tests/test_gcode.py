@@ -95,3 +95,28 @@ def test_a_panel_straying_beyond_the_tolerance_is_flagged_with_where_to_cut():
     text, info = panel_gcode(p, shop_of(m), spec_name="hw", side="upper side")
     assert info["flagged"] and "add a cut position at y = 150" in text
     assert all(line.count("(") <= 1 for line in text.splitlines())  # G-code comments do not nest
+
+
+def test_mirror_on_a_mast_is_refused_with_its_field():
+    from geomgen.errors import SpecError
+
+    text = SPEC.format(kerf=0.0, tol=0.5).replace('role = "wing"', 'role = "mast"\norientation = "vertical-up"\n'
+                                                  "mirror = true")
+    with pytest.raises(SpecError) as e:
+        load_spec_text(text)
+    assert "surface" in str(e.value) and "mirror" in str(e.value) and "mast has one side only" in str(e.value)
+
+
+def test_smooth_planform_of_a_mirrored_part_has_zero_slope_at_the_mirror_plane():
+    """Three stations, mirrored: the spline through the mirrored stations is even in y, so
+    the chord's slope at the centreline is zero (a not-a-knot spline through the stations alone
+    has 0.033 there, a point at the root in the top view)."""
+    text = SPEC.format(kerf=0.0, tol=0.5).replace('role = "wing"', 'role = "wing"\nmirror = true\n'
+                                                  'interpolation = "smooth"')
+    text = text.replace("[[surface.station]]\ny = 300", "[[surface.station]]\ny = 150\nchord = 160\nsection = \"a\"\n"
+                        "[[surface.station]]\ny = 300")
+    (m,) = build_models(load_spec_text(text))
+    h = 1e-4
+    slope = (m.planform("chord", h) - m.planform("chord", 0.0)) / h
+    assert abs(float(slope)) < 1e-3
+    assert float(m.planform("chord", 150.0)) == pytest.approx(160.0)
