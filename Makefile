@@ -29,6 +29,7 @@ test-fast: $(STAMP)
 bench: $(STAMP)
 	$(BIN)/python bench/bench.py
 	$(BIN)/python bench/bench_hydro.py
+	$(BIN)/python bench/bench_parts.py
 
 # Long property-based run (>= 10,000 generated specs); result recorded in DEVELOPERS.md.
 fuzz-long: $(STAMP)
