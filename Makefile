@@ -31,6 +31,7 @@ bench: $(STAMP)
 	$(BIN)/python bench/bench_hydro.py
 	$(BIN)/python bench/bench_studies.py
 	$(BIN)/python bench/bench_sections.py
+	$(BIN)/python bench/bench_parts.py
 
 # Long property-based run (>= 10,000 generated specs); result recorded in DEVELOPERS.md.
 fuzz-long: $(STAMP)

@@ -110,3 +110,7 @@ MAX_ERROR_LINES = 50
 #: The machines this runs on have a few GiB shared between users; 1 GiB is about 4000 panels.
 LATTICE_MEMORY_BUDGET_BYTES = 1 << 30
 LATTICE_MATRICES = 8
+
+#: A mounting pad flat over less of its footprint than this is warned about: the fuselage
+#: then bears on a small patch (common practice, no source).
+PAD_CONTACT_WARN = 0.5

@@ -221,8 +221,8 @@ def test_hotwire_ends_in_step_and_in_the_surface_frame(write_spec, tmp_path):
     spec, files = _write(write_spec, tmp_path, **kw)
     model = build_models(load_spec(spec))[0]
     names = sorted(p.name for p in files if "hotwire" in p.name)
-    assert names == ["t-w-hotwire-0-150.dxf", "t-w-hotwire-0-150.txt", "t-w-hotwire-150-300.dxf",
-                     "t-w-hotwire-150-300.txt"]
+    assert names == ["t-w-hotwire-0-150.dxf", "t-w-hotwire-0-150.gcode", "t-w-hotwire-0-150.txt",
+                     "t-w-hotwire-150-300.dxf", "t-w-hotwire-150-300.gcode", "t-w-hotwire-150-300.txt"]
     lines = (tmp_path / "out" / "drawings/t-w-hotwire-150-300.txt").read_text().splitlines()
     assert lines[sum(ln.startswith("#") for ln in lines)] == "i,a_x_mm,a_z_mm,b_x_mm,b_z_mm"
     rows = np.array([ln.split(",") for ln in lines if ln[0].isdigit()], float)
@@ -322,4 +322,4 @@ print(len(files))
 """
     res = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT)
     assert res.returncode == 0, res.stderr
-    assert int(res.stdout) == 6  # templates dxf + svg, offsets csv, one panel txt + dxf, the summary
+    assert int(res.stdout) == 8  # templates dxf + svg + pdf, offsets csv, one panel txt + dxf + gcode, the summary

@@ -109,7 +109,9 @@ def check_solid(shape: TopoDS_Shape) -> list[str]:
     out = []
     if not BRepCheck_Analyzer(shape).IsValid():
         out.append("the kernel's shape check fails")
-    if volume_mm3(shape) <= 0:
+    props = GProp_GProps()  # the sign needs no accuracy: the kernel's quick default integral
+    BRepGProp.VolumeProperties_s(shape, props)
+    if props.Mass() <= 0:
         out.append("the volume is not positive (inside out or open)")
     return out
 

@@ -205,6 +205,20 @@ def cut(shape, tools, what: str):
     return cut_features(shape, tools, what)[0] if tools else shape
 
 
+def subtract(shape, other, what: str):
+    """``shape`` less the solid ``other`` (one valid solid expected)."""
+    return checked(_run(BRepAlgoAPI_Cut(), [shape], [other], what), what)[0]
+
+
+def loose_bbox(shape) -> tuple[np.ndarray, np.ndarray]:
+    """The box a CAD program shows by default: from the faces' surfaces and control nets,
+    not optimised to the trimmed faces."""
+    b = Bnd_Box()
+    BRepBndLib.Add_s(shape, b, False)
+    x0, y0, z0, x1, y1, z1 = b.Get()
+    return np.array([x0, y0, z0]), np.array([x1, y1, z1])
+
+
 def common(shape, tool, what: str):
     return checked(_run(BRepAlgoAPI_Common(), [shape], [tool], what), what, count=None)
 

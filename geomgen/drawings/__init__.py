@@ -20,7 +20,7 @@ from typing import Callable
 
 from .. import CAUTION, __version__
 from ..errors import SpecError
-from . import hotwire, offsets, svg, templates
+from . import gcode, hotwire, offsets, pdf, svg, templates
 from .common import cuts_of, position_problems, shop_of, upper_side
 
 __all__ = ["write_shop_drawings", "format_shop_summary", "ShopFiles", "SurfaceSummary"]
@@ -34,6 +34,7 @@ class SurfaceSummary:
     panels: int
     kerf_mm: float
     worst_ruled_mm: float  # largest mid-panel deviation of a ruled hot-wire cut, mm
+    warnings: list = None  # panels whose straight cut strays beyond cut_tol_mm
 
 
 class ShopFiles(list):
@@ -102,6 +103,11 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
                    lambda p, cuts=cuts, common=common, layout=layout, shop=shop:
                    svg.write_templates_svg(cuts, p, **common, **layout, margin=shop.template_margin_mm),
                    f"{m.name}: 1:1 section templates to print at 100 % (check the rulers)"),
+            Output(name("templates", suffix=".pdf"), "file",
+                   lambda p, cuts=cuts, common=common, shop=shop:
+                   pdf.write_templates_pdf(cuts, p, **common, height=shop.label_height_mm, paper=shop.paper,
+                                           overlap=shop.tile_overlap_mm),
+                   f"{m.name}: section templates to print at 100 % on {shop.paper} (tiled with crosses where larger)"),
             Output(name("offsets", suffix=".csv"), "file",
                    lambda p, tables=tables, common=common: offsets.write_offsets_csv(tables, p, **common),
                    f"{m.name}: offset table, heights above and below the chord line (mm)")]
@@ -113,8 +119,18 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
                     lambda p, pn=pn, writer=writer, side=side, m=m:
                     writer(pn, p, spec_name=set_name, side=side, mirrored=bool(m.mirror)),
                     f"{m.name}: hot-wire end paths of one foam panel ({what}, kerf offset)"))
+            outputs.append(Output(
+                name("hotwire", pn.tag, suffix=".gcode"), "file",
+                lambda p, pn=pn, side=side, shop=shop: gcode.write_panel_gcode(pn, p, shop=shop, spec_name=set_name,
+                                                                               side=side),
+                f"{m.name}: four-axis hot-wire G-code of one foam panel (towers X/Y and U/V)"))
         summaries.append(SurfaceSummary(m.name, len(cuts), sum(len(t.x_pct) for t in tables), len(panels),
-                                        shop.kerf_mm, max((p.mid_deviation for p in panels), default=0.0)))
+                                        shop.kerf_mm, max((p.mid_deviation for p in panels), default=0.0),
+                                        [f"{m.name} panel y = {p.y_a:g} .. {p.y_b:g} mm: the straight hot-wire cut "
+                                         f"strays {p.mid_deviation:.2f} mm from the surface (tolerance "
+                                         f"{shop.cut_tol_mm:g} mm); add a cut position at y = "
+                                         f"{0.5 * (p.y_a + p.y_b):g} in hotwire_cuts" for p in panels
+                                         if p.mid_deviation > shop.cut_tol_mm]))
     res = ShopFiles([], set_name, project.out_dir, summaries, 0.0)
     res.extend(project.out_dir / o.name for o in outputs)
     res.seconds = time.perf_counter() - t0
@@ -139,8 +155,9 @@ def format_shop_summary(res: ShopFiles, for_file: bool = False) -> str:
                      f"{s.worst_ruled_mm:>17.3f}")
     lines += ["", "files:"] + [f"  {Path(p).relative_to(res.out_dir) if Path(p).is_relative_to(res.out_dir) else p}"
                                for p in res]
+    lines += [f"WARNING: {w}" for s in res.surfaces for w in (s.warnings or [])]
     lines += [f"note: {n}" for n in getattr(res, "notes", [])]
-    lines += ["", "Templates are 1:1 in mm: print the SVG at 100 % and check its rulers.",
+    lines += ["", "Templates are 1:1 in mm: print the PDF or the SVG at 100 % and check the rulers.",
               "'ruled cut dev.' is how far a straight hot-wire cut between a panel's ends strays from the "
               "intended surface halfway along it; where it is too large, add cut positions "
               "(hotwire_cuts in [surface.shop]) to shorten the panels.", "", f"CAUTION: {CAUTION}"]

@@ -181,7 +181,7 @@ def build_models(spec, source: str | Path = "<spec>") -> list[SurfaceModel]:
             own, other, frac = key
             blended[key] = sections[own].blended(sections[other], frac) if other else sections[own]
         pf = Planform([s.y for s in st], [s.chord for s in st], xs, zs, [s.twist for s in st],
-                      keys, sf.interpolation)
+                      keys, sf.interpolation, mirror=sf.mirror)
         model = SurfaceModel(sf, pf, blended)
         model.named_sections = sections
         chord = chord_problems(model)

@@ -3,9 +3,11 @@
 ``linear`` interpolates each quantity piecewise linearly between stations; ``smooth`` uses an
 interpolating cubic spline (scipy ``CubicSpline``, not-a-knot ends; a parabola through three
 stations, a line through two): C2, like a drawn batten, so a loft of cubic B-spline sections
-follows it closely. Both are linear in the station values, so section blend weights always
-sum to one. A spline can bulge between stations; the model refuses a chord that drops to
-zero or below between stations.
+follows it closely. It is not shape-preserving: between stations it can swing past their
+values (twist between two 0° stations is not 0; the model refuses large swings). On a
+mirrored part the spline runs through the stations mirrored to the other side too, so
+every quantity has zero slope at the mirror plane (no point at the root in the top view).
+Both modes are linear in the station values, so section blend weights always sum to one.
 """
 
 from __future__ import annotations
@@ -27,9 +29,10 @@ class Planform:
     mode : "linear" | "smooth"
     """
 
-    def __init__(self, y, chord, x, z, twist, keys, mode: str):
+    def __init__(self, y, chord, x, z, twist, keys, mode: str, mirror: bool = False):
         self.y = np.asarray(y, float)
         self.mode = mode
+        self.mirror = bool(mirror) and self.y[0] == 0.0
         self.keys = list(dict.fromkeys(keys))
         self._f = {name: self._interp(np.asarray(v, float)) for name, v in
                    (("chord", chord), ("x", x), ("z", z), ("twist", twist))}
@@ -37,7 +40,9 @@ class Planform:
         self._w = [self._interp(row) for row in eye]
 
     def _interp(self, values):
-        if self.mode == "smooth" and len(self.y) > 2:
+        if self.mode == "smooth" and (len(self.y) > 2 or self.mirror):
+            if self.mirror:  # through the mirrored stations too: zero slope at y = 0
+                return CubicSpline(np.concatenate([-self.y[:0:-1], self.y]), np.concatenate([values[:0:-1], values]))
             return CubicSpline(self.y, values)
         yy = self.y
         return lambda q: np.interp(q, yy, values)

@@ -52,6 +52,10 @@ class Skin:
 
 
     @property
+    def u_range(self) -> tuple[float, float]:
+        return float(self.tu[0]), float(self.tu[-1])
+
+    @property
     def v_range(self) -> tuple[float, float]:
         return float(self.tv[0]), float(self.tv[-1])
 

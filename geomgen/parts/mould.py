@@ -18,7 +18,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..geometry.skin import Skin
-from .frame import Tool
 from .gridskin import skin_through
 
 
@@ -55,9 +54,14 @@ def root_frame(model, skin: Skin) -> RootFrame:
     return RootFrame(le, c, e, n / np.linalg.norm(n))
 
 
-def parting_skin(model, skin: Skin, margin: float) -> Skin:
+def parting_skin(model, skin: Skin, margin: float, reach: tuple[float, float] | None = None,
+                 rf: "RootFrame | None" = None) -> Skin:
     """Ruled parting surface through the chord lines of the loft sections, extended ``margin``
-    mm beyond both edges and both span ends (degree 1 chordwise, cubic spanwise)."""
+    mm beyond both edges and both span ends (degree 1 chordwise, cubic spanwise).
+
+    ``reach`` (with ``rf``): instead, extend each chord line just to the positions
+    (fore, aft) along the root chord from the root leading edge, so the surface (and its
+    control net) ends where the mould block does."""
     e = np.asarray(model.span_axis, float)
     segs = []
 
@@ -65,7 +69,13 @@ def parting_skin(model, skin: Skin, margin: float) -> Skin:
         le, te = chord_points(skin, float(np.clip(y, *skin.v_range)))
         c = te - le
         c /= np.linalg.norm(c)
-        return np.stack([le - margin * c, te + margin * c]) + shift * e
+        if reach is None:
+            a, b = margin, margin
+        else:
+            k = float(c @ rf.chord)
+            a = ((le - rf.le) @ rf.chord - reach[0]) / k
+            b = (reach[1] - (te - rf.le) @ rf.chord) / k
+        return np.stack([le - a * c, te + b * c]) + shift * e
 
     y0, y1 = skin.v_range
     ext = np.linspace(0.0, margin, 4)
@@ -74,30 +84,3 @@ def parting_skin(model, skin: Skin, margin: float) -> Skin:
         segs.append((seg, np.stack([line(y) for y in seg])))
     segs.append((y1 + ext, np.stack([line(y1, d) for d in ext])))
     return skin_through(np.array([0.0, 1.0]), segs, du=1)
-
-
-def plate_box(rf: RootFrame, skin: Skin, parting: Skin | None, flange: float, thickness: float,
-              half: str) -> tuple[Tool, float]:
-    """A box (datum frame) around the outline, ``flange`` beyond it in the machine X and Y of the
-    upper pose, that the parting surface cuts into the plate of ``half``: for the upper half
-    the plate lies below the parting surface (``thickness`` under its lowest point in the box),
-    for the lower half above it. Returns the box and the machine Z of the plate's flat face
-    (upper pose)."""
-    B, t = rf.pose("upper")
-    pts = skin.evaluate(np.linspace(0, 1, 81), np.linspace(*skin.v_range, 61)).reshape(-1, 3) @ B.T + t
-    lo, hi = pts.min(axis=0), pts.max(axis=0)
-    x0, x1 = lo[0] - flange, hi[0] + flange
-    y0, y1 = lo[1] - flange, hi[1] + flange
-    if parting is None:
-        zlo = zhi = 0.0
-    else:
-        q = parting.evaluate(np.linspace(0, 1, 201), np.linspace(*parting.v_range, 201)).reshape(-1, 3) @ B.T + t
-        inside = (q[:, 0] >= x0) & (q[:, 0] <= x1) & (q[:, 1] >= y0) & (q[:, 1] <= y1)
-        zlo, zhi = float(q[inside, 2].min()) - 0.5, float(q[inside, 2].max()) + 0.5
-    if half == "upper":
-        z0, z1, flat = zlo - thickness, zhi + 1.0, zlo - thickness
-    else:
-        z0, z1, flat = zlo - 1.0, zhi + thickness, zhi + thickness
-    corner = np.array([x0, y0, z0])
-    origin = B.T @ (corner - t)
-    return Tool("box", origin, B[2], z1 - z0, xdir=B[0], size=(x1 - x0, y1 - y0), label=f"{half} flange plate"), flat

@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .. import defaults
 from .frame import Tool, line_crossings, section_datum_xz
 
 #: How far feature tools reach beyond the part, mm (keeps tool faces off the skin).
@@ -67,6 +68,17 @@ def plan_mount(model, ms) -> MountPlan:
     sgn = 1 if ms.side == "upper" else -1
     near, far = (ms.side, "lower" if ms.side == "upper" else "upper")
     S = _Sections(model, sgn)
+    auto = ms.pad_z == "auto"
+    if auto:  # the height that leaves pad_contact of the footprint's grid points above the plane
+        x0, x1 = ms.pad_x
+        wn = np.concatenate([S.w(np.linspace(x0, x1, 61), float(y))[1] for y in
+                             np.linspace(ms.pad_y - 0.5 * ms.pad_width, ms.pad_y + 0.5 * ms.pad_width, 31)])
+        wn = np.where(np.isnan(wn), -np.inf, wn)
+        if not np.isfinite(wn).any():
+            return MountPlan([], {"pad": {}, "holes": []}, [f'surface "{name}" mount pad: the footprint x {x0:g} .. '
+                                                          f"{x1:g} mm misses the part; nothing would be flat"])
+        k = int(np.ceil(ms.pad_contact * len(wn)))
+        ms = ms.model_copy(update={"pad_z": float(sgn * (np.sort(wn)[::-1][k - 1] - 1e-6))})
     poles = model.skin.poles.reshape(-1, 3)
     w_all = sgn * poles[:, 2]
     w_min, w_max = float(w_all.min()) - TOOL_MARGIN, float(w_all.max()) + TOOL_MARGIN
@@ -196,14 +208,18 @@ def plan_mount(model, ms) -> MountPlan:
     depth = 0.0
     deepest = None
     through = None
+    nearest = math.inf
+    skin_w: list[float] = []
     for y in ys:
         wf, wn = S.w(xs, float(y))
         n_all += len(xs)
         have = ~np.isnan(wf)
+        skin_w += list(wn[have])
         cut = have & (wn > wp)
         n_cut += int(cut.sum())
         if (have & ~cut).any():
             gap = max(gap, float((wp - wn[have & ~cut]).max()))
+            nearest = min(nearest, float((wp - wn[have & ~cut]).min()))
         if cut.any():
             k = int(np.argmax(np.where(cut, wn, -np.inf)))
             if wn[k] - wp > depth:
@@ -218,11 +234,20 @@ def plan_mount(model, ms) -> MountPlan:
                 k = int(np.argmin(np.where(m, wall, np.inf)))
                 if wall[k] < min_wall[0]:
                     min_wall = (float(wall[k]), (float(xs[k]), float(y)), (float(ms.pad_z), float(sgn * wf[k])))
+    zs = sorted(sgn * v for v in (min(skin_w), max(skin_w))) if skin_w else None
     pad = {"side": ms.side, "z": ms.pad_z, "x": list(ms.pad_x), "y": [y0, y1],
-           "flat_fraction": n_cut / n_all, "max_cut_mm": depth, "max_gap_mm": gap}
+           "flat_fraction": n_cut / n_all, "max_cut_mm": depth, "max_gap_mm": gap,
+           "min_gap_mm": None if math.isinf(nearest) else nearest, "skin_z_range": zs,
+           "auto": {"contact_target": ms.pad_contact} if auto else None, "notes": []}
+    rng = f"; the {near} skin over the footprint lies at z = {zs[0]:.2f} .. {zs[1]:.2f} mm" if zs else ""
     if n_cut == 0:
         problems.append(f"{where} pad: the plane z = {ms.pad_z:g} mm does not reach the {near} skin anywhere in "
-                        f"its footprint (nearest {gap:.2f} mm away); nothing would be flat")
+                        f"its footprint (nearest {nearest:.2f} mm away, farthest {gap:.2f} mm){rng}; nothing would "
+                        "be flat")
+    elif n_cut < n_all and n_cut / n_all < defaults.PAD_CONTACT_WARN:
+        pad["notes"].append(f"the pad is flat over only {100 * n_cut / n_all:.0f} % of its footprint (gaps up to "
+                            f"{gap:.2f} mm to the skin{rng}): the fuselage bears on part of it; "
+                            f'lower pad_z or set pad_z = "auto" with pad_contact')
     elif through is not None:
         problems.append(f"{where} pad: the plane z = {ms.pad_z:g} mm cuts through the {far} skin at "
                         f"x={through[0]:.1f}, y={through[1]:.1f}")

@@ -319,7 +319,7 @@ def plan_printing(pm: SurfaceModel, ps, mount_tools=(), mount_holes=()) -> Print
                                 "mount hole; move it or use an odd count")
         how = f"{len(cuts) + 1} pieces at split_at"
     elif ps.build_volume is not None:
-        cuts, how = auto_split(pm, s, ps.build_volume, ps.odd_count, avoid)
+        cuts, how = auto_split(pm, s, ps.usable_volume, ps.odd_count, avoid)
     else:
         cuts = []
     bounds = [float(v) for v in [y_lo] + list(cuts) + [y_hi]]
@@ -328,12 +328,12 @@ def plan_printing(pm: SurfaceModel, ps, mount_tools=(), mount_holes=()) -> Print
     for i, (a, b) in enumerate(zip(bounds[:-1], bounds[1:])):
         dims = extents_local(pm, a, b)
         out = (-1 if 0.5 * (a + b) < -1e-9 else 1) if pm.mirror else 1
-        M, pose, fits = choose_pose(dims * s, out, ps.build_volume)
+        M, pose, fits = choose_pose(dims * s, out, ps.usable_volume)
         pieces.append(Piece(i, (a, b), dims, out, M, pose, fits))
         if fits is False:
             problems.append(f'surface "{model.name}" printing: piece {i + 1} (span {a:.1f} .. {b:.1f} mm, '
                             f"{' x '.join(f'{v:.0f}' for v in dims * s)} printed mm) does not fit the build volume "
-                            f"{' x '.join(f'{v:g}' for v in ps.build_volume)} mm")
+                            f"{' x '.join(f'{v:g}' for v in ps.usable_volume)} mm (after bed_margin)")
     spar_tools, spars, p2 = plan_spars(pm, ps)
     F = Frame.of(pm)
     spar_lines = [((sp["span"][0], sp["span"][1]), F.to_local(np.array(sp["start"])), F.to_local(np.array(sp["end"])),

@@ -62,7 +62,7 @@ def write_shop_parts(project, out_dir=None, *, progress: Callable[[str], None] |
     todo = [sf for sf in spec.surface if sf.mount or sf.printing or sf.laminate]
     if not todo:
         problems.append(f"{src}: no surface has a [surface.mount], [surface.printing] or [surface.laminate] table; "
-                        "nothing to make")
+                        "nothing to make (specs/demo-stabilizer-shop.toml in the geomgen sources shows each table)")
     if problems:
         raise SpecError(problems)
     outputs, surfaces, notes = [], [], []

@@ -16,10 +16,16 @@ def _cm3(v: float) -> str:
 def _mount(m: dict) -> list[str]:
     p = m["pad"]
     far = "lower" if p["side"] == "upper" else "upper"
-    out = [f"  mount: pad at datum z = {p['z']:g} mm on the {p['side']} skin, x {p['x'][0]:g} .. {p['x'][1]:g}, "
-           f"y {p['y'][0]:g} .. {p['y'][1]:g} mm",
-           f"    flat over {100 * p['flat_fraction']:.0f} % of the footprint (deepest cut {p['max_cut_mm']:.2f} mm, "
-           f"largest gap to the skin {p['max_gap_mm']:.2f} mm)"]
+    auto = p.get("auto")
+    out = [f"  mount: pad at datum z = {p['z']:.2f} mm on the {p['side']} skin"
+           + (f" (auto: {100 * auto['contact_target']:.0f} % contact)" if auto else "")
+           + f", x {p['x'][0]:g} .. {p['x'][1]:g}, y {p['y'][0]:g} .. {p['y'][1]:g} mm",
+           f"    flat over {100 * p['flat_fraction']:.0f} % of the footprint (deepest cut {p['max_cut_mm']:.2f} mm"
+           + (f", gaps to the skin {p['min_gap_mm']:.2f} .. {p['max_gap_mm']:.2f} mm" if p.get("min_gap_mm") is not None
+              else "")
+           + (f"; skin at z = {p['skin_z_range'][0]:.2f} .. {p['skin_z_range'][1]:.2f} mm" if p.get("skin_z_range") else "")
+           + ")"]
+    out += [f"    WARNING: {n}" for n in p.get("notes", [])]
     if "wall_mm" in p:
         out.append(f"    least wall under the pad {p['wall_mm']:.2f} mm to the {far} skin at x = {p['wall_at'][0]:.1f}, "
                    f"y = {p['wall_at'][1]:.1f} (min_wall {m['min_wall_mm']:g})")
@@ -46,7 +52,8 @@ def _mount(m: dict) -> list[str]:
 def _printing(p: dict) -> list[str]:
     bv = p.get("build_volume")
     out = [f"  printing: scale {p['scale']:g}, trailing edge {p['te_printed_mm']:.2f} printed mm; {p['split']}"
-           + (f" for a {' x '.join(f'{v:g}' for v in bv)} mm build volume" if bv else "")]
+           + (f" for a {' x '.join(f'{v:g}' for v in bv)} mm build volume less {p.get('bed_margin', 0):g} mm "
+              "each side" if bv else "")]
     for pc in p["pieces"]:
         fit = "" if pc["fits"] is None else ("  fits" if pc["fits"] else "  DOES NOT FIT")
         out.append(f"    piece {pc['index']}: span {pc['span'][0]:.1f} .. {pc['span'][1]:.1f} mm, {pc['pose']}, "
@@ -60,9 +67,14 @@ def _printing(p: dict) -> list[str]:
         out.append(f"    spar Ø{s['diameter']:g} (channel Ø{s['channel_diameter']:g}) span {s['span'][0]:g} .. "
                    f"{s['span'][1]:g} mm at {100 * s['chord'][0]:.0f} .. {100 * s['chord'][1]:.0f} % chord: least wall "
                    f"{s['wall_printed_mm']:.2f} printed mm at span {s['wall_at_y']:.1f}")
-    out.append(f"    check: pieces {_cm3(p['volume_pieces_mm3'])} + removed features {_cm3(p['volume_removed_mm3'])} = "
-               f"part {_cm3(p['volume_whole_mm3'])} (difference {100 * p['balance_error_rel']:.4f} %), "
-               "design size")
+    if "volume_bare_mesh_mm3" in p:
+        out.append(f"    check: pieces {_cm3(p['volume_pieces_mm3'])} + removed features {_cm3(p['volume_removed_mm3'])} = "
+                   f"meshed part {_cm3(p['volume_bare_mesh_mm3'])}; exact part {_cm3(p['volume_whole_mm3'])} (mesh "
+                   f"{100 * p['balance_error_rel']:.2f} % off, within its {p['mesh_tol']:g} mm tolerance), design size")
+    for pc in p["pieces"]:
+        if "overhang_mm2" in pc and not pc["needs_support"] and pc["overhang_mm2"] > 0:
+            out.append(f"    piece {pc['index']}: {pc['overhang_mm2']:.0f} mm² overhangs more than 45° "
+                       "(hole roofs and ledges the slicer bridges)")
     out += [f"    note: {n}" for n in p.get("notes", [])]
     if "joint_test" in p:
         out.append(f"    joint test slice at span {p['joint_test']['y']:.1f} mm: {', '.join(p['joint_test']['files'])}")
@@ -81,10 +93,22 @@ def _laminate(lam: dict) -> list[str]:
     if m:
         hv = {h["half"]: h for h in m["halves"]}
         fl = m.get("flange")
-        out.append(f"    mould halves ({m['parting']} parting): upper {_cm3(hv['upper']['volume_mm3'])} + lower "
-                   f"{_cm3(hv['lower']['volume_mm3'])} = part {_cm3(m['volume_part_mm3'])}"
-                   + (f"; flange {fl['width']:g} mm wide, {fl['thickness']:g} mm thick" if fl else ""))
-        out.append(f"      {hv['upper']['file']}, {hv['lower']['file']}")
+        out.append(f"    two-part mould ({m['parting']} parting): part halves {_cm3(hv['upper']['volume_mm3'])} upper + "
+                   f"{_cm3(hv['lower']['volume_mm3'])} lower = part {_cm3(m['volume_part_mm3'])}"
+                   + (f"; flange {fl['width']:g} mm, {fl['thickness']:g} mm behind the cavity" if fl else ""))
+        for h in m["halves"]:
+            if "stock_size_mm" in h:
+                out.append(f"      {h['half']} mould: stock {' x '.join(f'{v:.1f}' for v in h['stock_size_mm'])} mm, cavity "
+                           f"{_cm3(h['cavity_mm3'])}, solid as written {_cm3(h['volume_written_mm3'])}; {h['file']}")
+            else:
+                out.append(f"      {h['half']}: {h['file']}")
+        holes = m.get("holes") or []
+        if holes:
+            dw = [h for h in holes if h["kind"] == "dowel"]
+            bo = [h for h in holes if h["kind"] == "bolt"]
+            out.append(f"      {len(dw)} dowel holes Ø{dw[0]['diameter']:g} and {len(bo)} bolt holes Ø{bo[0]['diameter']:g} "
+                       "through both halves (positions in the report)")
+        out += [f"      WARNING: {w}" for w in m.get("notes", [])]
     return out
 
 

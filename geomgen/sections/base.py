@@ -132,7 +132,7 @@ class Section:
             (mx, my), (hx, hy) = mid_half(s)
             return mx - factor * hx, my - factor * hy
 
-        return Section(up, lo, f"{self.label} x{factor:g} thickness", self.fit_deviation)
+        return Section(up, lo, f"{self.label}, thickness scaled to {factor:.1%}", self.fit_deviation)
 
     def inverted(self) -> "Section":
         """Mirror about the chord line: the cambered side goes below (stabilizers)."""
@@ -192,4 +192,4 @@ class Section:
             return f
 
         dev = max(d for d in (self.fit_deviation, other.fit_deviation, 0.0) if d is not None)
-        return Section(mix(a_up, b_up), mix(a_lo, b_lo), f"{self.label}/{other.label} {w:.3f}", dev or None)
+        return Section(mix(a_up, b_up), mix(a_lo, b_lo), f"{self.label} blended {w:.0%} toward {other.label}", dev or None)

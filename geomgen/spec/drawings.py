@@ -9,7 +9,7 @@ when the drawings are made, because only the geometry knows the tip.
 
 from __future__ import annotations
 
-from typing import Annotated, Optional
+from typing import Literal, Annotated, Optional
 
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator
 
@@ -49,6 +49,10 @@ class ShopSpec(BaseModel):
         0.002, ge=0.0005, le=0.1,
         description="largest gap between a drawn template outline (polyline) and the true section, mm")
     label_height_mm: Num = Field(3.0, ge=1.0, le=20.0, description="text height of template labels, mm")
+    paper: Literal["A4", "Letter", "A3"] = Field(
+        "A4", description="paper of the print-ready PDF templates (one template a page, tiled when larger)")
+    tile_overlap_mm: Num = Field(15.0, ge=5.0, le=60.0,
+                                   description="overlap of neighbouring tiles of a PDF template, mm")
 
     # -- offset tables ------------------------------------------------------------
     offset_pct: list[ChordPct] = Field(
@@ -72,6 +76,17 @@ class ShopSpec(BaseModel):
     hotwire_corner_points: Int = Field(
         7, ge=2, le=64,
         description="points on the rounded wire path around each trailing-edge corner when kerf_mm > 0")
+    machine_width_mm: Num = Field(
+        1000.0, gt=50.0, le=5000.0, description="four-axis foam cutter: distance between its two towers, mm")
+    block_from_left_mm: Optional[Num] = Field(
+        None, ge=0.0, le=5000.0,
+        description="distance from the X/Y tower to the panel's first block face, mm (default: centred)")
+    feed_mm_min: Num = Field(150.0, gt=1.0, le=5000.0, description="cutting feed rate, mm/min")
+    lead_mm: Num = Field(10.0, ge=1.0, le=200.0,
+                           description="straight lead-in and lead-out of the wire behind the trailing edge, mm")
+    cut_tol_mm: Num = Field(0.5, gt=0.0, le=20.0,
+                              description="a panel whose straight cut strays further than this from the surface "
+                                          "halfway along it is flagged, mm")
 
     @field_validator("templates_at")
     @classmethod

@@ -193,7 +193,9 @@ class SurfaceSpec(_Strict):
     te_thickness: Num = Field(defaults.TE_THICKNESS_MM, ge=0.0, le=20.0,
                                 description="finished trailing-edge thickness, mm (0 = sharp)")
     interpolation: Literal["linear", "smooth"] = Field(
-        "linear", description="between stations: linear, or smooth (shape-preserving cubic)")
+        "linear", description="between stations: linear, or smooth (C2 cubic spline through the stations, "
+                              "not-a-knot ends; it can swing past the station values between them; zero "
+                              "slope at the mirror plane of a mirrored part)")
     loft_sections: Int = Field(defaults.LOFT_SECTIONS, ge=4, le=400,
                                description="loft sections per half span (more: closer to a curved planform)")
     tip: Literal["flat", "round"] = Field(
@@ -213,6 +215,13 @@ class SurfaceSpec(_Strict):
     mount: Optional[MountSpec] = Field(None, description="mounting pad and bolt holes")
     printing: Optional[PrintingSpec] = Field(None, description="printable pieces, locators, spar channels")
     laminate: Optional[LaminateSpec] = Field(None, description="cores and moulds")
+
+    @model_validator(mode="after")
+    def _one_sided(self):
+        if self.mirror and self.role in ("mast", "fin"):
+            raise ValueError(f"mirror: a {self.role} has one side only (mirror = true would carry it through "
+                             "the fuselage to the other side); remove mirror")
+        return self
 
     # station order and spacing are checked on the raw data in load.py, so they are
     # reported even when other fields of the same surface are wrong

@@ -11,11 +11,11 @@ printed mm and do not scale with ``printing.scale``.
 
 from __future__ import annotations
 
-from typing import Literal, Optional, Union
+from typing import Annotated, Literal, Optional, Union
 
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator, model_validator
 
-from .types import MAX_SPLITS, DatumMM, Int, Num
+from .types import MAX_SPLITS, DatumMM, Num
 
 
 class _Strict(BaseModel):
@@ -110,7 +110,11 @@ class MountSpec(_Strict):
 
     side: Literal["upper", "lower"] = Field(
         "upper", description="which skin the fuselage sits on: upper (part below the fuselage) or lower")
-    pad_z: Num = Field(ge=-5000.0, le=5000.0, description="datum z of the pad plane, mm")
+    pad_z: Union[Annotated[Num, Field(ge=-5000.0, le=5000.0)], Literal["auto"]] = Field(
+        description='datum z of the pad plane, mm; or "auto": the height at which the pad touches '
+                    "pad_contact of its footprint")
+    pad_contact: Num = Field(0.6, ge=0.05, le=1.0,
+                               description='share of the footprint made flat when pad_z = "auto"')
     pad_x: tuple[DatumMM, DatumMM] = Field(description="datum x range of the pad footprint [fore, aft], mm")
     pad_width: Num = Field(gt=1.0, le=2000.0, description="pad footprint width along y, mm")
     pad_y: Num = Field(0.0, ge=-5000.0, le=5000.0, description="datum y of the footprint centre, mm")
@@ -187,6 +191,11 @@ class PrintingSpec(_Strict):
     build_volume: Optional[tuple[DatumMM, DatumMM, DatumMM]] = Field(
         None, description="printer build volume [x, y, z], mm; without split_at the part is split "
                           "automatically so every piece fits (in an axis-aligned pose)")
+    bed_margin: Num = Field(8.0, ge=0.0, le=100.0,
+                              description="clear band kept inside the build volume's x and y on every side "
+                                          "(skirt, brim, bed clips), printed mm")
+    nozzle: Num = Field(0.4, ge=0.1, le=2.0,
+                          description="nozzle diameter, printed mm; features too small for it are warned about")
     odd_count: StrictBool = Field(False, description="automatic split: an odd number of pieces, the centre piece "
                                                "carrying the mount")
     min_wall: Num = Field(1.2, ge=0.2, le=20.0,
@@ -204,6 +213,26 @@ class PrintingSpec(_Strict):
         if v is not None and min(v) <= 5.0:
             raise ValueError(f"must be > 5 mm on every axis, got {list(v)}")
         return v
+
+    @model_validator(mode="after")
+    def _margin(self):
+        if self.build_volume is not None and min(self.build_volume[:2]) <= 2 * self.bed_margin + 5.0:
+            raise ValueError(f"bed_margin ({self.bed_margin:g} mm each side) leaves less than 5 mm of the build "
+                             f"volume's x or y ({self.build_volume[0]:g} x {self.build_volume[1]:g} mm)")
+        return self
+
+    @property
+    def usable_volume(self) -> tuple[float, float, float] | None:
+        """The build volume less ``bed_margin`` on each side in x and y, printed mm."""
+        if self.build_volume is None:
+            return None
+        x, y, z = self.build_volume
+        return (x - 2 * self.bed_margin, y - 2 * self.bed_margin, z)
+
+    @property
+    def line_width(self) -> float:
+        """Extrusion width taken as 1.125 x the nozzle (common practice, no source), printed mm."""
+        return 1.125 * self.nozzle
 
     @field_validator("split_at")
     @classmethod
@@ -223,13 +252,23 @@ class LaminateSpec(_Strict):
         1.0, ge=0.1, le=20.0,
         description="the core ends toward the trailing edge where its thickness falls to this, mm "
                     "(there the part is about 2 x laminate + this thick)")
-    mould: StrictBool = Field(True, description="write the part split into upper and lower mould halves")
+    mould: StrictBool = Field(True, description="write a two-part female mould: a stock block per half less the part")
     parting: Literal["stations", "root-chord"] = Field(
         "stations", description="parting surface: through every section's chord line (stations), or the "
                                 "plane through the root chord line (root-chord)")
-    flange: Num = Field(0.0, ge=0.0, le=500.0,
-                          description="width of a plate around the outline on the parting surface, mm (0: none)")
-    flange_thickness: Num = Field(10.0, gt=0.0, le=200.0, description="plate thickness, mm")
+    flange: Num = Field(25.0, ge=0.0, le=500.0,
+                          description="width of the mould block beyond the part's outline on the parting "
+                                      "surface (the flange carrying the pins and bolts), mm")
+    flange_thickness: Num = Field(15.0, gt=0.0, le=200.0,
+                                    description="least mould material behind the cavity (block depth beyond the "
+                                                "part's highest point), mm")
+    pin_diameter: Num = Field(6.0, ge=1.0, le=30.0,
+                                description="registration dowel holes through both halves near the four corners, "
+                                            "mm (0 flange: none)")
+    bolt_diameter: Num = Field(6.6, ge=1.0, le=30.0,
+                                 description="bolt clearance holes through both halves' flange, mm (6.6: M6)")
+    bolt_spacing: Num = Field(100.0, ge=20.0, le=1000.0,
+                                description="largest distance between bolt holes along each long side, mm")
     pose: Literal["machine", "datum"] = Field(
         "machine", description="machine: root chord plane on the machine XY plane, leading edge along X, root "
                                "leading edge at the origin, each mould half's outside up; datum: as built")
