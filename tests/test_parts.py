@@ -700,3 +700,22 @@ def test_every_piece_slices_as_written_inside_the_bed(shop, tmp_path):
         xy = _extrusion_xy(out)
         assert len(xy) > 100
         assert (np.abs(xy[:, 0]) <= bx / 2).all() and (np.abs(xy[:, 1]) <= by / 2).all(), (name, xy.min(0), xy.max(0))
+
+
+@pytest.mark.slow
+def test_root_chord_parting_moulds_are_made_and_warn_of_their_undercut(tmp_path):
+    """The flat root-chord parting (the other path of the mould code) makes both halves and
+    warns of the nose undercut the stations parting avoids."""
+    from conftest import ROOT
+    from geomgen.parts import write_shop_parts
+
+    text = (ROOT / "specs" / "demo-stabilizer-shop.toml").read_text()
+    assert 'parting = "stations"' in text
+    spec = tmp_path / "rc.toml"
+    spec.write_text(text.replace('parting = "stations"', 'parting = "root-chord"'))
+    shop = write_shop_parts(spec, tmp_path / "out")
+    mould = shop.report["surfaces"][0]["laminate"]["mould"]
+    assert mould["parting"] == "root-chord" and len(mould["halves"]) == 2
+    for h in mould["halves"]:
+        assert (shop.out_dir / h["file"]).stat().st_size > 1000
+    assert any("UNDERCUT" in n for n in mould.get("notes", []))
