@@ -1,0 +1,5 @@
+"""``python -m geomgen.cli``."""
+
+from . import main
+
+main()
