@@ -6,7 +6,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..geometry.slices import (Frame, Outline, SkinSlicer, chord_and_thickness, gauss_nodes, planform_figures,
+from ..geometry.slices import (Frame, Outline, SkinSlicer, chord_and_thickness, crease_positions, gauss_nodes,
+                              gauss_nodes_between, planform_figures,
                               root_of, section_diameter, skin_grid, skin_volume_centroid, span_axis_of,
                               span_axis_of_grid)
 
@@ -32,7 +33,8 @@ def measure_step_solid(ms, stations=(), frame: Frame | None = None) -> dict:
         sl = slicer.slice(np.clip(s, lo + eps, hi - eps))
         return sl[:, :, 0].min(axis=1), np.ptp(sl[:, :, 0], axis=1), sl
 
-    s, w = gauss_nodes(lo, hi)
+    # integrate piecewise between the skin's creases (a linear station is a kink in the outline)
+    s, w = gauss_nodes_between([lo, hi] + [c for c in crease_positions(ms.skin, axis) if lo < c < hi])
     x_le, c, _ = extents(s)
     root, tip = frame.ends(lo, hi) if frame else root_of(lo, hi, lambda q: extents(q)[1])[:2]
     (xr, xt), (cr, ct), ends = extents(np.array([root, tip]))

@@ -64,6 +64,26 @@ def gauss_nodes(a: float, b: float) -> tuple[np.ndarray, np.ndarray]:
     return (0.5 * (hi - lo) * xg + 0.5 * (hi + lo)).ravel(), (0.5 * (hi - lo) * wg).ravel()
 
 
+def gauss_nodes_between(breaks) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`gauss_nodes` on every interval between sorted ``breaks`` (creases), joined: an
+    outline with a kink integrates exactly as smooth pieces, not across the kink."""
+    b = np.unique(np.asarray(breaks, float))
+    parts = [gauss_nodes(a, c) for a, c in zip(b[:-1], b[1:]) if c - a > 1e-9 * (b[-1] - b[0])]
+    return np.concatenate([p[0] for p in parts]), np.concatenate([p[1] for p in parts])
+
+
+def crease_positions(skin: Skin, axis: int) -> list[float]:
+    """Datum coordinates along ``axis`` of the skin's spanwise creases: interior span knots of
+    full multiplicity (C0: a linear station, the centreline of a mirrored part), read from the
+    skin itself (the measurement never looks at the spec)."""
+    kn, mult = np.unique(np.round(skin.tv[skin.dv + 1:len(skin.tv) - skin.dv - 1], 12), return_counts=True)
+    kn = kn[mult >= skin.dv]
+    if not len(kn):
+        return []
+    u = 0.5 * (skin.tu[skin.du] + skin.tu[-skin.du - 1])
+    return [float(v) for v in skin.evaluate(np.array([u]), kn)[0, :, axis]]
+
+
 # -- slices of a B-spline skin ---------------------------------------------------------
 def _grid_params(t: np.ndarray, deg: int, per_span: int) -> np.ndarray:
     kn = np.unique(t[deg:len(t) - deg])
