@@ -146,3 +146,16 @@ def test_cli_compare_family_and_sweep_write_their_tables(tmp_path):
     assert len(pngs) == 1 and pngs[0].read_bytes()[:4] == b"\x89PNG"
     bad = CliRunner().invoke(main, ["sweep", str(DEMO), "--vary", "surface[nope].incidence=1,2", "-o", str(out)])
     assert bad.exit_code == 2 and "no surface named 'nope'" in bad.output
+
+
+@pytest.mark.slow
+def test_family_builds_and_checks_each_size_when_asked(tmp_path):
+    """--build: every size is built and checked in its own folder, its verdict in its row."""
+    project = Project(DEMO, tmp_path / "o")
+    t, specs = family(project, "stabilizer", [200.0], "aspect", build_root=tmp_path / "o" / "family")
+    (row,) = t.rows
+    assert row["check"] == "ok", row
+    member = next(iter(specs))
+    built = tmp_path / "o" / "family" / member / "files"
+    assert (built / "cad" / f"{member}-stabilizer.step").is_file()
+    assert (built / "report" / f"{member}-check.json").is_file()
