@@ -159,3 +159,22 @@ def test_family_builds_and_checks_each_size_when_asked(tmp_path):
     built = tmp_path / "o" / "family" / member / "files"
     assert (built / "cad" / f"{member}-stabilizer.step").is_file()
     assert (built / "report" / f"{member}-check.json").is_file()
+
+
+def test_the_report_carries_the_comparison_made_from_the_same_spec(tmp_path):
+    """compare writes studies/<set>-compare.json; the report of the same spec and folder shows
+    it as a section (values from that file); a changed spec does not show a stale one."""
+    from geomgen.report.content import Table as PageTable, _comparison as comparison_blocks
+    from geomgen.report.data import _comparison
+
+    out = tmp_path / "o"
+    r = CliRunner().invoke(main, ["compare", str(DEMO), "--change", "shim:stabilizer-0.5", "-o", str(out)])
+    assert r.exit_code == 0, r.output
+    c = _comparison(Project(DEMO, out))
+    table = json.loads((out / "studies/lakeside-cruiser-compare.json").read_text())
+    assert c["labels"] == table["labels"] and c["rows"][1]["stab_lift_n"] == table["rows"][1]["stab_lift_n"]
+    blocks = comparison_blocks({"comparison": c})
+    assert isinstance(blocks[1], PageTable) and len(blocks[1].header) == 3
+    changed = tmp_path / "changed.toml"
+    changed.write_text(DEMO.read_text() + "\n# an edit\n")
+    assert _comparison(Project(changed, out)) is None

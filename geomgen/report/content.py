@@ -312,6 +312,21 @@ def _check(data) -> list:
     return out
 
 
+def _comparison(data) -> list:
+    """The set's what-if comparison (made by ``geomgen compare`` from this spec), if any."""
+    c = data.get("comparison")
+    if not c or not c["rows"]:
+        return []
+    header = [["figure"]] + [[V(("comparison", "labels", j), "str")] for j in range(len(c["labels"]))]
+    rows = [[[V(("comparison", "headings", k), "str")]]
+            + [[V(("comparison", "rows", j, k), "sig")] for j in range(len(c["rows"]))] for k in c["figures"]]
+    return [Heading(2, ["What if: compared variants"], "comparison"),
+            Table(header, rows, numeric=set(range(1, len(header))), caption=[
+                "From ", V(("comparison", "file"), "str"), " (geomgen compare, this spec). At trim: lift = weight "
+                "at the compared speed; mast move: how far the mast goes in its tracks (aft +) to keep the net "
+                "centre of pressure under the rider where the base set has it. First estimates."])]
+
+
 def page(data) -> list:
     """The report as blocks, in reading order."""
     caution = Para(["CAUTION: ", V(("caution",), "str")], "caution")
@@ -323,4 +338,5 @@ def page(data) -> list:
             Bullets([[V(("check", "summary", i), "str")] for i in range(len(data["check"]["summary"]))],
                     "ok" if data["check"]["ok"] else "bad")]
     return (head + _main_figures(data) + _balance(data) + _views(data) + _sections(data) + _spanwise(data)
-            + _section_properties(data) + _check(data) + [Heading(2, ["Caution"], "caution"), caution])
+            + _section_properties(data) + _comparison(data) + _check(data)
+            + [Heading(2, ["Caution"], "caution"), caution])

@@ -315,4 +315,33 @@ def report_data(project, out_dir=None, *, progress=None, drawing: dict | None = 
     data["check"] = _check_section(res)
     if res.balance_skipped:
         data["balance_skipped"] = res.balance_skipped
+    data["comparison"] = _comparison(project)
     return _clean(data)
+
+
+#: figures of a what-if comparison the report shows, in this order
+COMPARISON_FIGURES = ("wing_lift_n", "stab_lift_n", "stab_lift_pct_weight", "drag_n", "lift_to_drag",
+                      "neutral_point_x_mm", "static_margin_pct", "cp_from_mast_mm", "mast_move_mm", "takeoff_kmh",
+                      "cavitation_kmh")
+
+
+def _comparison(project) -> dict | None:
+    """The set's latest what-if comparison (``geomgen compare`` into the same folder), if it was
+    made from this very spec (same hash in the manifest); else None."""
+    import json
+
+    from ..outputs import output_name, read_manifest
+    from ..studies.figures import FIGURES
+
+    name = output_name(project.name, "compare", suffix=".json", folder="studies")
+    entry = read_manifest(project.out_dir).get(name)
+    if entry is None or entry.get("spec_sha256") != project.spec_sha256:
+        return None
+    try:
+        table = json.loads((project.out_dir / name).read_text())
+    except (OSError, ValueError):
+        return None
+    keys = [k for k in COMPARISON_FIGURES if any(r.get(k) is not None for r in table.get("rows", []))]
+    return {"file": name, "labels": table.get("labels", []), "figures": keys,
+            "headings": {k: f"{FIGURES[k][0]}{', ' + FIGURES[k][1] if FIGURES[k][1] else ''}" for k in keys},
+            "rows": [{k: r.get(k) for k in keys} for r in table.get("rows", [])]}
