@@ -323,3 +323,16 @@ print(len(files))
     res = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT)
     assert res.returncode == 0, res.stderr
     assert int(res.stdout) == 8  # templates dxf + svg + pdf, offsets csv, one panel txt + dxf + gcode, the summary
+
+
+def test_same_spec_same_drawing_bytes(tmp_path):
+    """Templates (DXF, SVG, PDF), offsets, hot-wire files and the manifest are byte-identical
+    across runs: no time stamps or random ids in them (the PDF and DXF once carried both)."""
+    from conftest import DEMO, snapshot
+
+    a, b = tmp_path / "a", tmp_path / "b"
+    write_shop_drawings(DEMO, a)
+    write_shop_drawings(DEMO, b)
+    sa, sb = snapshot(a), snapshot(b)
+    assert sa.keys() == sb.keys() and any(k.endswith(".pdf") for k in sa) and any(k.endswith(".dxf") for k in sa)
+    assert [k for k in sa if sa[k] != sb[k]] == []

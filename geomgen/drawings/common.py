@@ -189,3 +189,18 @@ def cuts_of(model) -> list[Cut]:
                        float(model.spec.incidence), float(model.spec.reference), model.section(y),
                        is_station, bool(model.mirror), shop.template_tol_mm))
     return out
+
+
+def save_dxf(doc, path) -> None:
+    """Save an ezdxf document with fixed time stamps and ids (ezdxf's fixed-metadata option), so
+    the same spec gives the same bytes, as the STEP and the PDF do; OSError goes to the caller."""
+    import ezdxf
+    from ezdxf.document import CREATED_BY_EZDXF, ezdxf_marker_string
+
+    before = ezdxf.options.write_fixed_meta_data_for_testing
+    ezdxf.options.write_fixed_meta_data_for_testing = True
+    try:
+        doc.ezdxf_metadata()[CREATED_BY_EZDXF] = ezdxf_marker_string()  # stamped when the document was made
+        doc.saveas(path)
+    finally:
+        ezdxf.options.write_fixed_meta_data_for_testing = before

@@ -27,7 +27,7 @@ from .. import CAUTION, __version__
 from ..errors import ExportError, GeometryError
 from ..geometry.surface import rot_y
 from ..sections.base import Section
-from .common import distance_to_dense_polyline, distance_to_polyline, fmt_y, shop_of
+from .common import distance_to_dense_polyline, distance_to_polyline, fmt_y, save_dxf, shop_of
 
 #: Finite-difference steps for the analytic normals (angle parameter, chord parameter).
 H_PHI, H_S = 1e-6, 1e-5
@@ -326,6 +326,6 @@ def write_panel_dxf(p: Panel, path, *, spec_name: str, side: str, mirrored: bool
     for i, text in enumerate(reversed(lines)):
         msp.add_text(text, height=2.5, dxfattribs={"layer": "labels"}).set_placement((left, top + 4.0 * i))
     try:
-        doc.saveas(path)
+        save_dxf(doc, path)
     except OSError as exc:
         raise ExportError(f"{path}: cannot write: {exc.strerror or exc}") from None

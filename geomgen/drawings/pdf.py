@@ -12,6 +12,8 @@ Page coordinates: mm from the top left corner, y down; template (chord frame) z 
 
 from __future__ import annotations
 
+import datetime
+
 import math
 from dataclasses import dataclass
 
@@ -107,6 +109,10 @@ def write_templates_pdf(cuts: list[Cut], path, *, spec_name: str, model_name: st
     pages = layout(cuts, side, height, paper, overlap)
     by_y = {c.y: c for c in cuts}
     pdf = FPDF(unit="mm", format=PAPER[paper])
+    # a fixed date, as in the STEP header: the same spec gives the same bytes (and manifest)
+    pdf.set_creation_date(datetime.datetime(2000, 1, 1, tzinfo=datetime.timezone.utc))
+    pdf.set_creator("geomgen")
+    pdf.set_producer("geomgen")
     pdf.set_auto_page_break(False)
     pdf.set_compression(False)
     title = sheet_notes(spec_name, model_name, side)[0]

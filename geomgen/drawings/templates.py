@@ -17,7 +17,7 @@ import numpy as np
 
 from .. import CAUTION, __version__
 from ..errors import ExportError
-from .common import Cut, fmt_y
+from .common import Cut, fmt_y, save_dxf
 
 #: Layers (DXF) and classes (SVG), with AutoCAD colour indices for the DXF.
 LAYERS = {"outline": 7, "chord-line": 1, "reference-mark": 3, "datum-line": 5, "labels": 8}
@@ -136,6 +136,6 @@ def write_templates_dxf(cuts: list[Cut], path, *, spec_name: str, model_name: st
             ents.append(t)
         doc.groups.new(f"template y={fmt_y(c.y)}").set_data(ents)
     try:
-        doc.saveas(path)
+        save_dxf(doc, path)
     except OSError as exc:
         raise ExportError(f"{path}: cannot write: {exc.strerror or exc}") from None
