@@ -105,3 +105,27 @@ def test_section_labels_say_in_words_what_was_done_to_the_section():
     a, b = naca("2412"), naca("0009")
     assert a.scaled_thickness(0.874526).label == "NACA 2412, thickness scaled to 87.5%"
     assert a.blended(b, 0.5).label == "NACA 2412 blended 50% toward NACA 0009"
+
+
+@pytest.mark.skipif(__import__("shutil").which("pdftoppm") is None,
+                    reason="poppler-utils (pdfinfo, pdftoppm) not installed; .ci/run installs it")
+def test_a_pdf_reader_opens_every_page_at_paper_size(tmp_path):
+    """Opened by a PDF reader's renderer (poppler, Debian poppler-utils): the page count and
+    paper size it reports, and page 1 rendered at 72 dpi has the paper's size in pixels."""
+    import subprocess
+
+    from conftest import DEMO
+    from geomgen.drawings import write_shop_drawings
+
+    write_shop_drawings(DEMO, tmp_path / "o")
+    pdf = tmp_path / "o" / "drawings" / "lakeside-cruiser-front-wing-templates.pdf"
+    info = subprocess.run(["pdfinfo", str(pdf)], capture_output=True, text=True, check=True).stdout
+    pages = int(re.search(r"Pages:\s+(\d+)", info).group(1))
+    w, h = (float(v) for v in re.search(r"Page size:\s+([\d.]+) x ([\d.]+) pts", info).groups())
+    assert pages >= 4  # one template a station of the demo wing
+    assert sorted((w, h)) == pytest.approx(sorted(v * PT for v in PAPER["A4"]), abs=0.5)
+    subprocess.run(["pdftoppm", "-r", "72", "-png", "-f", "1", "-l", "1", str(pdf), str(tmp_path / "p")], check=True)
+    from PIL import Image
+
+    png = next(tmp_path.glob("p*.png"))
+    assert sorted(Image.open(png).size) == pytest.approx(sorted((w, h)), abs=1.5)
