@@ -43,8 +43,11 @@ def measure_step_solid(ms, stations=(), frame: Frame | None = None) -> dict:
     fig = planform_figures(Outline(s, w, x_le, c), lo, hi, cr_true, ct_true, root, tip, xr + cr / 4, xt + ct / 4)
     # the kernel's centre of mass was seen up to 0.09 mm off on constant-chord swept wings,
     # whatever accuracy it was asked for; the skin's exact quadrature is used instead
-    _, centroid = skin_volume_centroid(ms.skin)
-    fig.update(volume_cm3=ms.volume_mm3 / 1000, wetted_area_cm2=ms.area_mm2 / 100,
+    # volume likewise: the kernel's volume integral read 0.21 % low (at any accuracy asked) on a
+    # sawtooth planform whose skin, meshed finely, holds the intended volume; the skin's exact
+    # quadrature (the file's own poles and knots; the caps add nothing) is the measurement
+    volume, centroid = skin_volume_centroid(ms.skin)
+    fig.update(volume_cm3=volume / 1000, wetted_area_cm2=ms.area_mm2 / 100,
                centroid_mm=tuple(float(v) for v in centroid))
     d = frame.sign if frame else _direction(root, tip)
     st = []
@@ -52,7 +55,7 @@ def measure_step_solid(ms, stations=(), frame: Frame | None = None) -> dict:
         _, _, sl = extents(np.array([root + d * float(y)]))
         st.append({"y_mm": float(y), **chord_and_thickness(sl[0], axis), "points": sl[0]})
     return {"figures": fig, "stations": st, "sampling_mm": dev, "axis": axis,
-            "kernel_centroid_mm": tuple(float(v) for v in ms.centroid)}
+            "kernel_centroid_mm": tuple(float(v) for v in ms.centroid), "kernel_volume_cm3": ms.volume_mm3 / 1000}
 
 
 def _mesh_slices(vertices: np.ndarray, edges: np.ndarray, axis: int, s: np.ndarray) -> list[np.ndarray]:
