@@ -7,7 +7,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..geometry.slices import (Frame, Outline, SkinSlicer, chord_and_thickness, crease_positions, gauss_nodes,
-                              gauss_nodes_between, planform_figures,
+                              gauss_nodes_between, gauss_on_pieces, planform_figures,
                               root_of, section_diameter, skin_grid, skin_volume_centroid, span_axis_of,
                               span_axis_of_grid)
 
@@ -95,9 +95,7 @@ def measure_stl(path, frame: Frame | None = None) -> dict:
     # station falls on a row): 3-point Gauss between consecutive rows integrates it piece by piece
     rows = np.unique(np.round(mesh.vertices[:, axis], 6))
     if 2 <= len(rows) <= 4000:
-        xg, wg = np.polynomial.legendre.leggauss(3)
-        a, b = rows[:-1, None], rows[1:, None]
-        s, w = (0.5 * (b - a) * xg + 0.5 * (a + b)).ravel(), (0.5 * (b - a) * wg).ravel()
+        s, w = gauss_on_pieces(rows)
     else:
         s, w = gauss_nodes(lo, hi)
     x_le, c, _ = extents(s)

@@ -72,6 +72,15 @@ def gauss_nodes_between(breaks) -> tuple[np.ndarray, np.ndarray]:
     return np.concatenate([p[0] for p in parts]), np.concatenate([p[1] for p in parts])
 
 
+def gauss_on_pieces(breaks, order: int = 3) -> tuple[np.ndarray, np.ndarray]:
+    """``order``-point Gauss nodes and weights on each interval between sorted ``breaks``: exact
+    for an integrand polynomial of degree < 2·order on every piece (a piecewise-linear outline)."""
+    b = np.unique(np.asarray(breaks, float))
+    xg, wg = np.polynomial.legendre.leggauss(order)
+    lo, hi = b[:-1, None], b[1:, None]
+    return (0.5 * (hi - lo) * xg + 0.5 * (hi + lo)).ravel(), (0.5 * (hi - lo) * wg).ravel()
+
+
 def crease_positions(skin: Skin, axis: int) -> list[float]:
     """Datum coordinates along ``axis`` of the skin's spanwise creases: interior span knots of
     full multiplicity (C0: a linear station, the centreline of a mirrored part), read from the
