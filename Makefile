@@ -33,6 +33,12 @@ bench: $(STAMP)
 	$(BIN)/python bench/bench_sections.py
 	$(BIN)/python bench/bench_parts.py
 
-# Long property-based run (>= 10,000 generated specs); result recorded in DEVELOPERS.md.
+# Long property-based runs; results recorded in DEVELOPERS.md. fuzz-long: >= 10,000 generated
+# specs through `geomgen check` on every core (log: fuzz-long.tsv); fuzz-long-core: the
+# geometry and kernel properties in their long profile.
 fuzz-long: $(STAMP)
-	GEOMGEN_FUZZ=long $(BIN)/python -m pytest -q tests/test_fuzz.py -p no:cacheprovider
+	$(BIN)/python tests/fuzz_long.py --cases 10000 --log fuzz-long.tsv
+
+fuzz-long-core: $(STAMP)
+	GEOMGEN_FUZZ=long $(BIN)/python -m pytest -q tests/test_fuzz.py -p no:cacheprovider \
+		-k "not every_spec_is_refused"

@@ -31,7 +31,10 @@ def naca_designation(draw):
 
 
 @st.composite
-def spec_params(draw):
+def spec_params(draw, files: bool = False):
+    """Plausible spec parameters. With ``files``, section ``a`` is sometimes a coordinate file
+    (written by :func:`coordinate_files` beside the spec: the NACA formula's points, as a
+    file of 5 or 6 decimals, 25 to 160 points a side, Selig loop or split layout)."""
     n = draw(st.integers(2, 5))
     gaps = draw(st.lists(st.floats(5.0, 300.0), min_size=n - 1, max_size=n - 1))
     ys = [0.0]
@@ -70,12 +73,38 @@ def spec_params(draw):
                                           (draw(st.floats(-500.0, 800.0)), draw(st.floats(-300.0, 300.0)),
                                            draw(st.floats(-900.0, 200.0)))])),
         "stations": stations,
+        "file_a": (draw(st.sampled_from([None, None, (draw(st.integers(25, 160)), draw(st.sampled_from([5, 6])),
+                                                      draw(st.sampled_from(["loop", "split"])))]))
+                   if files else None),
     }
+
+
+def coordinate_files(p: dict) -> dict:
+    """{file name: text} of the coordinate files a spec of :func:`spec_text` reads."""
+    if not p.get("file_a"):
+        return {}
+    import numpy as np
+
+    from geomgen.sections import naca
+    from geomgen.sections.base import cosine_s
+
+    n, decimals, layout = p["file_a"]
+    sec, s = naca(p["a"]), cosine_s(n)
+    up, lo = np.column_stack(sec.upper(s)), np.column_stack(sec.lower(s))
+
+    def fmt(pts):
+        return "\n".join(f"{x:.{decimals}f} {y:.{decimals}f}" for x, y in pts)
+
+    if layout == "loop":
+        text = f"section a\n{fmt(np.vstack([up[::-1], lo[1:]]))}\n"
+    else:
+        text = f"section a\n{len(up)}. {len(lo)}.\n\n{fmt(up)}\n\n{fmt(lo)}\n"
+    return {"a.dat": text}
 
 
 def spec_text(p: dict) -> str:
     lines = ['format = 1', 'name = "fz"', '[datum]', 'origin = "fuzz origin"',
-             '[sections.a]', f'naca = "{p["a"]}"', '[sections.b]', f'naca = "{p["b"]}"',
+             '[sections.a]', f'file = "a.dat"' if p.get("file_a") else f'naca = "{p["a"]}"', '[sections.b]', f'naca = "{p["b"]}"',
              f'invert = {str(p["invert_b"]).lower()}']
     if p["thickness_b"] is not None:
         lines.append(f'thickness_pct = {p["thickness_b"]!r}')
@@ -103,3 +132,37 @@ BAD_VALUES = [
     ("sections.naca", '"2A12"'), ("sections.naca", '"26012"'), ("sections.naca", '"1"'),
     ("surface.unknown_key", "1"), ("station.unknown_key", "1"),
 ]
+
+
+def run_cli_case(p: dict, folder) -> tuple[str, str, str]:
+    """Issue 15's property for one generated spec, through the command line (``geomgen check``
+    in-process): returns (outcome, first line or tail of the output, problem). The problem is
+    empty when the spec was either refused before anything was written (exit 2 or 3, the part
+    or the field named) or built and its written files checked clean (exit 0: these specs carry
+    no expectations, so any fault is a false one)."""
+    from pathlib import Path
+
+    from click.testing import CliRunner
+
+    from geomgen.cli import main
+
+    d = Path(folder)
+    spec = d / "fz.toml"
+    spec.write_text(spec_text(p))
+    for name, text in coordinate_files(p).items():
+        (d / name).write_text(text)
+    out = d / "out"
+    r = CliRunner().invoke(main, ["check", str(spec), "-o", str(out)])
+    text = r.output
+    if "Traceback" in text or r.exception is not None and not isinstance(r.exception, SystemExit):
+        return "traceback", text[-300:] or repr(r.exception), "a traceback or an uncaught exception"
+    if r.exit_code in (2, 3):
+        first = text.splitlines()[0] if text else ""
+        if out.exists() and any(out.rglob("*.step")):
+            return f"refused-{r.exit_code}", first, "refused after files were written"
+        if not ('surface "part"' in text or "surface[0]" in text or "sections " in text):
+            return f"refused-{r.exit_code}", first, "refusal names no surface, field or section"
+        return f"refused-{r.exit_code}", first, ""
+    if r.exit_code == 0:
+        return "clean", "", ""
+    return f"exit-{r.exit_code}", text[-600:], "a plausible spec without expectations did not check clean"

@@ -76,6 +76,44 @@ def test_volume_against_integral_of_the_naca_formula(tmp_path, write_spec):
     assert abs(r.stl - exact) <= r.tol_stl
 
 
+@pytest.mark.slow
+@pytest.mark.parametrize("te,tip,mirror,interp", [(0.0, "flat", False, "linear"), (0.6, "flat", True, "linear"),
+                                                  (0.4, "round", True, "smooth"), (1.0, "round", False, "linear")])
+def test_wetted_area_from_the_file_skin_matches_the_kernel_at_tight_accuracy(tmp_path, te, tip, mirror, interp):
+    """The measured wetted area (skin, trailing-edge strip and end caps by quadrature of the
+    file's own poles) agrees with the CAD kernel's surface integral of the same file asked
+    for 1e-8 relative accuracy (slow there, hence not used in the check) to 1e-5."""
+    from geomgen.cad.loft import area_mm2
+    from geomgen.cad.measure import read_step
+    from geomgen.check.measure import skin_surface_area
+    from geomgen.cad.measure import measure_step
+
+    stations = [dict(y=0, chord=200), dict(y=150, chord=180, x=15, z=5, twist=-1), dict(y=400, chord=90, x=60, z=-20)]
+    spec = wing_spec(te=te, mirror=mirror, interpolation=interp, section='naca = "4412"', stations=stations)
+    spec = spec.replace("reference = 0.25", f'reference = 0.25\ntip = "{tip}"')
+    p = tmp_path / "w.toml"
+    p.write_text(spec)
+    res = check(p, tmp_path / "o", write_record=False)
+    step = next((tmp_path / "o").rglob("*.step"))
+    ((_, solid),), (ms,) = read_step(step), measure_step(step)
+    kernel = area_mm2(solid, 1e-8)
+    assert skin_surface_area(ms.skin) == pytest.approx(kernel, rel=1e-5)
+    assert measured(res, "w", "wetted_area_cm2").step == pytest.approx(kernel / 100, rel=1e-5)
+
+
+def test_wetted_area_of_a_box_skin_is_its_six_faces():
+    """A bilinear skin around a 100 × 20 section loop, 300 long (open at one chord edge, which the
+    strip closes; caps at both ends): the area is the box's, 2(100·300 + 20·300 + 100·20)."""
+    from geomgen.geometry.skin import Skin
+    from geomgen.check.measure import skin_surface_area
+
+    # loop: (100,0,+10) -> (0,0,+10) -> (0,0,-10) -> (100,0,-10), the strip closes x = 100
+    loop = np.array([[100, 0, 10], [0, 0, 10], [0, 0, -10], [100, 0, -10]], float)
+    poles = np.stack([loop + [0, y, 0] for y in (0.0, 300.0)], axis=1)  # (4, 2, 3)
+    skin = Skin(tu=np.array([0, 0, 1 / 3, 2 / 3, 1, 1.0]), tv=np.array([0, 0, 1, 1.0]), poles=poles, du=1, dv=1)
+    assert skin_surface_area(skin) == pytest.approx(2 * (100 * 300 + 20 * 300 + 100 * 20), rel=1e-12)
+
+
 def test_wrong_expectation_fails_with_exit_1_and_names_it(tmp_path, write_spec):
     p = write_spec(wing_spec(extra="[surface.expect]\nmac_mm = { value = 150.0, tol = 0.5 }"))
     r = CliRunner().invoke(main, ["check", str(p), "-o", str(tmp_path / "o")])

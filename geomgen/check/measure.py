@@ -8,7 +8,7 @@ import numpy as np
 
 from ..geometry.slices import (Frame, Outline, SkinSlicer, chord_and_thickness, crease_positions, gauss_nodes,
                               gauss_nodes_between, gauss_on_pieces, planform_figures,
-                              root_of, section_diameter, skin_grid, skin_volume_centroid, span_axis_of,
+                              root_of, section_diameter, skin_grid, skin_surface_area, skin_volume_centroid, span_axis_of,
                               span_axis_of_grid)
 
 
@@ -47,15 +47,14 @@ def measure_step_solid(ms, stations=(), frame: Frame | None = None) -> dict:
     # sawtooth planform whose skin, meshed finely, holds the intended volume; the skin's exact
     # quadrature (the file's own poles and knots; the caps add nothing) is the measurement
     volume, centroid = skin_volume_centroid(ms.skin)
-    fig.update(volume_cm3=volume / 1000, wetted_area_cm2=ms.area_mm2 / 100,
+    fig.update(volume_cm3=volume / 1000, wetted_area_cm2=skin_surface_area(ms.skin) / 100,
                centroid_mm=tuple(float(v) for v in centroid))
     d = frame.sign if frame else _direction(root, tip)
     st = []
     for y in stations:
         _, _, sl = extents(np.array([root + d * float(y)]))
         st.append({"y_mm": float(y), **chord_and_thickness(sl[0], axis), "points": sl[0]})
-    return {"figures": fig, "stations": st, "sampling_mm": dev, "axis": axis,
-            "kernel_centroid_mm": tuple(float(v) for v in ms.centroid), "kernel_volume_cm3": ms.volume_mm3 / 1000}
+    return {"figures": fig, "stations": st, "sampling_mm": dev, "axis": axis}
 
 
 def _mesh_slices(vertices: np.ndarray, edges: np.ndarray, axis: int, s: np.ndarray) -> list[np.ndarray]:

@@ -125,9 +125,7 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
         section_seconds += time.perf_counter() - t_sec
         parts[m.name] = {"role": m.role, "step": step_name, "stl": stl_name,
                          "skin_sampling_mm": ms["sampling_mm"], "stl_triangles": st["triangles"],
-                         "watertight": st["watertight"], "sections": sec_table,
-                         # the kernel's own integrals, for information (see check.measure)
-                         "kernel_volume_cm3": ms["kernel_volume_cm3"], "kernel_centroid_mm": ms["kernel_centroid_mm"]}
+                         "watertight": st["watertight"], "sections": sec_table}
     t3 = time.perf_counter()
     res = CheckResult(project.name, out, built, records, parts,
                       {"build_or_reuse": t1 - t0, "kernel_import": t2 - t1, "measure": t3 - t2,
