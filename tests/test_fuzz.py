@@ -252,7 +252,7 @@ def test_found_by_the_property_a_sawtooth_planform_checks_clean(tmp_path):
     """Found by the long run: chords 13 / 42 / 10 / 40 mm at 5 mm spacing. The skin holds the
     intended volume (its exact quadrature, and a fine mesh of the kernel's solid), but the
     kernel's volume integral read 0.21 % low at any accuracy asked: the STEP volume is now the
-    skin's exact quadrature from the file (the kernel's is kept in the record)."""
+    skin's exact quadrature from the file (the kernel's is computed only on demand)."""
     from geomgen.cli import main
 
     st = lambda y, c: {"y": y, "chord": c, "x": 0.0, "z": 0.0, "twist": 0.0, "section": "a"}  # noqa: E731
@@ -301,4 +301,19 @@ def test_a_coordinate_file_section_through_the_command_line_checks_clean(tmp_pat
          "stations": [{"y": 0.0, "chord": 200.0, "section": "a"},
                       {"y": 300.0, "chord": 120.0, "x": 30.0, "z": 5.0, "twist": -1.0, "section": "b"}]}
     assert 'file = "a.dat"' in spec_text(p)
+    assert run_cli_case(p, tmp_path) == ("clean", "", "")
+
+
+@pytest.mark.slow
+def test_found_by_the_property_an_open_edge_on_a_short_chord_checks_clean(tmp_path):
+    """Found by the long CLI run: a 1 mm open edge on a 37 mm chord (section from a
+    coordinate file). The chord line aimed at the farther trailing-edge corner, which was the
+    upper one in the model's loop and the lower one in the file's slice: the second moment
+    about it read 7 % apart (a false fault). The line now runs to the edge midpoint."""
+    p = {"a": "22112", "b": "21012", "invert_b": False, "thickness_b": None, "mirror": True,
+         "orientation": "vertical-up", "interpolation": "smooth", "incidence": 6.643, "te": 1.0, "tip": "round",
+         "reference": 0.0, "position": (0.0, 0.0, 0.0), "file_a": (25, 5, "loop"),
+         "stations": [{"y": 0.0, "chord": 50.0, "section": "b"},
+                      {"y": 15.022, "chord": 36.741, "sweep": -25.319267389262322, "z": 42.56918491816296,
+                       "twist": -5.421703790819449, "section": "a"}]}
     assert run_cli_case(p, tmp_path) == ("clean", "", "")

@@ -208,14 +208,34 @@ def section_diameter(points: np.ndarray) -> tuple[float, int, int]:
 
 def section_frame(sl: np.ndarray, axis: int) -> tuple[float, int, np.ndarray, np.ndarray]:
     """(chord, index of the leading edge, unit chord direction (3,), unit normal (3,)) of an
-    ordered section polyline (n, 3) in a plane normal to datum ``axis``: the chord line of
-    :func:`chord_and_thickness`, the normal in the section plane (toward +z for a horizontal
-    part with the chord along +x)."""
+    ordered section polyline (n, 3) (upper trailing edge -> leading edge -> lower trailing
+    edge) in a plane normal to datum ``axis``: the chord line of :func:`chord_and_thickness`,
+    the normal in the section plane (toward +z for a horizontal part with the chord along +x).
+
+    The chord *length* is the section's largest extent (a caliper's reading). The chord
+    *line* runs from the leading edge to the trailing-edge midpoint (between the polyline's
+    two ends), the leading edge being the point farthest from that midpoint, located between
+    samples by a parabola through the farthest sample and its neighbours. (Aiming the line at
+    the trailing-edge corner that happened to be farther flipped it by te/chord between two
+    samplings of one section: an open 1 mm edge on a 37 mm chord moved the second moment
+    about the chord line 7 %.)
+    """
     chord, i, j = section_diameter(sl)
     n = len(sl)
-    # the leading edge is the end of the pair farther (in index) from the polyline's ends
-    i_le, i_te = (i, j) if min(i, n - 1 - i) >= min(j, n - 1 - j) else (j, i)
-    e = (sl[i_te] - sl[i_le]) / chord
+    te = 0.5 * (sl[0] + sl[-1])
+    d = np.linalg.norm(sl - te, axis=1)
+    lo, hi = max(1, n // 8), n - 1 - max(1, n // 8)  # the nose, away from the trailing edge
+    i_le = lo + int(np.argmax(d[lo:hi + 1]))
+    le = sl[i_le]
+    if 0 < i_le < n - 1:
+        d0, d1, d2 = d[i_le - 1], d[i_le], d[i_le + 1]
+        den = d0 - 2 * d1 + d2
+        f = 0.5 * (d0 - d2) / den if den < 0 else 0.0
+        f = float(np.clip(f, -0.5, 0.5))  # vertex of the parabola, in samples from i_le
+        p0, p1, p2 = sl[i_le - 1], sl[i_le], sl[i_le + 1]
+        le = p1 + 0.5 * f * (p2 - p0) + 0.5 * f * f * (p2 - 2 * p1 + p0)
+    e = te - le
+    e = e / np.linalg.norm(e)
     a, b = [k for k in range(3) if k != axis]
     nrm = np.zeros(3)
     nrm[a], nrm[b] = -e[b], e[a]
