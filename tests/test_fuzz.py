@@ -54,6 +54,10 @@ def test_valid_specs_give_watertight_meshes_matching_the_intended_volume(params)
     m = models[0]
     f = intended_figures(m)
     assert f.projected_area_cm2 > 0 and f.volume_cm3 > 0 and f.mac_mm > 0
+    # the skin spans the part: every station is a loft section (found by the long CLI run)
+    lo, hi = m.skin.v_range
+    assert hi == pytest.approx(m.half_span, abs=1e-9)
+    assert lo == pytest.approx(-m.half_span if m.mirror else float(m.planform.y[0]), abs=1e-9)
     v, faces = Part(m).mesh(0.05)
     mesh = trimesh.Trimesh(v, faces, process=True)
     assert mesh.is_watertight and mesh.is_winding_consistent

@@ -167,3 +167,18 @@ def test_round_tip_closes_in_a_quarter_ellipse():
     assert float(m.chord(400 + 40 * np.sin(np.pi / 6))) == pytest.approx(100 * np.cos(np.pi / 6), rel=1e-9)
     p = m.section_loop(end)
     assert np.linalg.norm(p[0] - p[-1]) == pytest.approx(0.5 * 0.15, abs=1e-9)
+
+
+def test_smooth_loft_keeps_every_station_and_both_ends():
+    """Found by the long CLI property run: chords 40 / 8 / 8 / 32 mm at y = 0 / 6.52 / 11.52 /
+    18.04 with smooth interpolation. A section spread 0.04 mm inside the tip was kept and the
+    tip station dropped as its near-duplicate, so the skin (and the STEP) stopped 0.039 mm short
+    of the span and every tip figure read as a fault. Every station and both ends are loft
+    sections, and the skin spans the part."""
+    st = [dict(y=0, chord=40), dict(y=6.52, chord=8), dict(y=11.52, chord=8), dict(y=18.04, chord=32.118)]
+    (m,) = build_models(load_spec_text(wing_spec(interpolation="smooth", mirror=False, stations=st,
+                                                 section='naca = "21012"'), "t.toml"))
+    ys = np.concatenate(m.loft_y())
+    for y in (0.0, 6.52, 11.52, 18.04):
+        assert np.min(np.abs(ys - y)) < 1e-9, y
+    assert m.skin.v_range == pytest.approx((0.0, m.half_span), abs=1e-9)

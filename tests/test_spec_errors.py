@@ -124,9 +124,55 @@ def test_self_crossing_section_refused(write_spec):
     text = text.replace('[[surface.station]]\nsection = "a"\ny = 400',
                         '[[surface.station]]\nsection = "a"\nblend = { section = "b", fraction = 1.0 }\ny = 400')
     build_models(load_spec(write_spec(text)))  # a real blend is fine
-    from geomgen.geometry.model import _segments_cross
+    from geomgen.geometry.polygon import polygon_crosses_itself
     import numpy as np
 
     bowtie = np.array([[0, 0], [1, 1], [1, 0], [0, 1]], float)
-    assert _segments_cross(bowtie)
-    assert not _segments_cross(np.array([[0, 0], [1, 0], [1, 1], [0, 1]], float))
+    assert polygon_crosses_itself(bowtie)
+    assert not polygon_crosses_itself(np.array([[0, 0], [1, 0], [1, 1], [0, 1]], float))
+
+
+def test_a_sharp_edge_closed_by_a_repeated_point_is_not_a_crossing():
+    """Found by the long CLI property run: a sharp-edged loop whose last point repeats the
+    first up to rounding (1e-19) had its two edge segments meeting there taken for a crossing,
+    and a blended section was refused as "crossing itself". The two segments that meet at a
+    repeated point are neighbours; a real crossing next to such an edge is still found."""
+    import numpy as np
+
+    from geomgen.geometry.polygon import polygon_crosses_itself
+    from geomgen.sections import naca
+
+    # the loop's edge points as the blended section gave them (unit chord): first and last
+    # differ by 2e-19 in z, and the two edge segments meet there at a small angle
+    first, last = np.array([1.0, -5.105846793396055e-05]), np.array([1.0, -5.1058467933960336e-05])
+    s = 0.5 * (1 - np.cos(np.linspace(0, np.pi, 200)))
+    sec = naca("4619", closed_te=True)
+    up, lo = np.column_stack(sec.upper(s)), np.column_stack(sec.lower(s))
+    loop = np.vstack([up[::-1], lo[1:]])
+    loop[0], loop[1], loop[-2], loop[-1] = first, [0.9999376228035857, -3.461163656728579e-05], \
+        [0.9999390096780750, -5.995371940543644e-05], last
+    assert not polygon_crosses_itself(loop)
+    twisted = loop.copy()
+    twisted[-2] = [0.99994, -2.0e-05]  # now above the upper side's first segment: a real crossing
+    assert polygon_crosses_itself(twisted)
+
+
+def test_found_by_the_property_a_sharp_edged_blend_of_a_coordinate_file_builds(tmp_path):
+    """The long run's case: section a from a coordinate file (98 points a side, 5 decimals),
+    blended linearly into an inverted 4619 with a sharp edge: it builds."""
+    import sys
+
+    sys.path.insert(0, str(__import__("pathlib").Path(__file__).parent))
+    from fuzz_specs import coordinate_files, spec_text
+
+    p = {"a": "5316", "b": "4619", "invert_b": True, "thickness_b": None, "mirror": True,
+         "orientation": "vertical-up", "interpolation": "linear", "incidence": -8.8, "te": 0.0, "tip": "flat",
+         "reference": 0.25, "position": (0.0, 0.0, 0.0), "file_a": (98, 5, "loop"),
+         "stations": [{"y": 0.0, "chord": 101.891, "section": "a"},
+                      {"y": 10.0, "chord": 79.24, "x": 13.0, "twist": -2.48, "section": "b"},
+                      {"y": 140.951, "chord": 56.711, "section": "b"}]}
+    (tmp_path / "fz.toml").write_text(spec_text(p))
+    for name, text in coordinate_files(p).items():
+        (tmp_path / name).write_text(text)
+    (m,) = build_models(load_spec(tmp_path / "fz.toml"))
+    assert m.half_span == pytest.approx(140.951)

@@ -25,6 +25,7 @@ import numpy as np
 
 from .. import CAUTION, __version__
 from ..errors import ExportError, GeometryError
+from ..geometry.polygon import polygon_crosses_itself
 from ..geometry.surface import rot_y
 from ..sections.base import Section
 from .common import distance_to_dense_polyline, distance_to_polyline, fmt_y, save_dxf, shop_of
@@ -89,26 +90,6 @@ def estimate_normals(p: np.ndarray, corners: list[int]) -> tuple[np.ndarray, dic
     return normals, {i: tuple(v) for i, v in cn.items()}
 
 
-def _segments_cross(p: np.ndarray, block: int = 256) -> bool:
-    """True if the closed polygon ``p`` crosses itself (non-adjacent edges meet)."""
-    a, b = p, np.roll(p, -1, axis=0)
-    n = len(p)
-
-    def side(p0, p1, q):  # sign of q relative to the line p0->p1, rows x columns
-        return np.sign((p1[:, None, 0] - p0[:, None, 0]) * (q[None, :, 1] - p0[:, None, 1])
-                       - (p1[:, None, 1] - p0[:, None, 1]) * (q[None, :, 0] - p0[:, None, 0]))
-
-    for i0 in range(0, n, block):
-        ai, bi = a[i0:i0 + block], b[i0:i0 + block]
-        hit = (side(ai, bi, a) * side(ai, bi, b) < 0) & (side(a, b, ai).T * side(a, b, bi).T < 0)
-        i, j = np.indices(hit.shape)
-        i = i + i0
-        near = (np.abs(i - j) <= 1) | (np.abs(i - j) == n - 1)
-        if (hit & ~near).any():
-            return True
-    return False
-
-
 def offset_loop(p: np.ndarray, r: float, *, normals: np.ndarray | None = None,
                 corner_normals: dict | None = None, arc_points: int = 7,
                 corner_deg: float = CORNER_DEG) -> np.ndarray:
@@ -148,7 +129,7 @@ def offset_loop(p: np.ndarray, r: float, *, normals: np.ndarray | None = None,
             m = v + r * (n_in + n_out) / (1.0 + float(n_in @ n_out))
             out.extend([m] * arc_points)
     q = np.array(out)
-    if _segments_cross(q) or distance_to_polyline(q, p).min() < 0.5 * r:
+    if polygon_crosses_itself(q) or distance_to_polyline(q, p).min() < 0.5 * r:
         raise GeometryError(f"an outward offset of {r:g} mm folds over itself (a concave stretch or a "
                             "gap narrower than the offset); use a smaller kerf")
     return q

@@ -11,6 +11,7 @@ from .. import defaults
 from ..errors import GeometryError, SpecError
 from ..sections import Section, naca
 from .planform import Planform, station_offsets
+from .polygon import polygon_crosses_itself
 from .surface import SurfaceModel
 
 
@@ -52,23 +53,6 @@ def _check_trailing_edge(model: SurfaceModel, where) -> list[str]:
         if te * float(model.tip_factor(y)) > limit:
             out.append((y, limit, t_start))
     return out
-
-
-def _segments_cross(p: np.ndarray) -> bool:
-    """True if the closed 2D polygon ``p`` (n, 2) crosses itself (non-adjacent edges meet)."""
-    a, b = p, np.roll(p, -1, axis=0)
-    n = len(p)
-
-    # orientation tests for every edge pair at once (n is a few hundred)
-    def orient(p0, p1, q):
-        return np.sign((p1[:, None, 0] - p0[:, None, 0]) * (q[None, :, 1] - p0[:, None, 1])
-                       - (p1[:, None, 1] - p0[:, None, 1]) * (q[None, :, 0] - p0[:, None, 0]))
-    o1, o2 = orient(a, b, a), orient(a, b, b)
-    o3, o4 = o1.T, o2.T
-    hit = (o1 * o2 < 0) & (o3 * o4 < 0)
-    i, j = np.indices((n, n))
-    adjacent = (np.abs(i - j) <= 1) | (np.abs(i - j) == n - 1)
-    return bool((hit & ~adjacent).any())
 
 
 def _bulges(model: SurfaceModel) -> list[str]:
@@ -133,7 +117,7 @@ def check_geometry(model: SurfaceModel, where) -> list[str]:
             return out
     for y in where:
         loop = model.section(y).loop(48)
-        if _segments_cross(loop):
+        if polygon_crosses_itself(loop):
             out.append(f'surface "{model.name}": the section at y = {y:.1f} mm crosses itself '
                        "(upper and lower surfaces meet); check thickness, blend and trailing edge")
             break

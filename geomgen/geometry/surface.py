@@ -254,6 +254,11 @@ class SurfaceModel:
         extra = []
         for p, q in zip(knots[:-1], knots[1:]):
             extra += list(np.linspace(p, q, 4)[1:-1])
-        pts = np.array(sorted(set(np.round(np.concatenate([y, inner, extra]), 9)), reverse=c < a))
-        keep = np.concatenate([[True], np.abs(np.diff(pts)) > 0.05])  # no near-duplicate sections
-        return pts[keep]
+        # no near-duplicate sections (0.05 mm), but the segment's ends and its stations are
+        # always kept: a spread section 0.04 mm inside the tip once replaced the tip station,
+        # and the skin stopped short of the span (found by the long CLI property run)
+        kept = list(knots)
+        for v in sorted(set(np.round(np.concatenate([y[1:-1], extra]), 9))):
+            if min(abs(v - k) for k in kept) > 0.05:
+                kept.append(float(v))
+        return np.array(sorted(kept, reverse=c < a))
