@@ -176,3 +176,16 @@ def test_found_by_the_property_a_sharp_edged_blend_of_a_coordinate_file_builds(t
         (tmp_path / name).write_text(text)
     (m,) = build_models(load_spec(tmp_path / "fz.toml"))
     assert m.half_span == pytest.approx(140.951)
+
+
+def test_a_crossing_section_is_refused_naming_its_stations_and_what_passes(write_spec, monkeypatch):
+    """The refusal names the surface, where (station or the two stations around it) and what
+    would pass (issue 15: every refusal says what to change)."""
+    import geomgen.geometry.model as gm
+
+    p = write_spec(wing_spec(te=0.0, mirror=False))
+    monkeypatch.setattr(gm, "polygon_crosses_itself", lambda loop: True)
+    with pytest.raises(GeometryError) as exc:
+        build_models(load_spec(p))
+    msg = str(exc.value)
+    assert 'surface "w"' in msg and "station[0]" in msg and "what passes:" in msg

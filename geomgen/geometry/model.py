@@ -118,8 +118,13 @@ def check_geometry(model: SurfaceModel, where) -> list[str]:
     for y in where:
         loop = model.section(y).loop(48)
         if polygon_crosses_itself(loop):
-            out.append(f'surface "{model.name}": the section at y = {y:.1f} mm crosses itself '
-                       "(upper and lower surfaces meet); check thickness, blend and trailing edge")
+            st = [float(v) for v in model.planform.y]
+            i = max(0, min(len(st) - 2, int(np.searchsorted(st, y, side="right")) - 1))
+            at = (f"at station[{i}]" if abs(y - st[i]) < 1e-9 else
+                  f"at station[{i + 1}]" if abs(y - st[i + 1]) < 1e-9 else
+                  f"between station[{i}] (y={st[i]:g}) and station[{i + 1}] (y={st[i + 1]:g})")
+            out.append(f'surface "{model.name}": the section at y = {y:.1f} mm ({at}) crosses itself (its upper '
+                       "and lower surfaces meet); what passes: a thicker section or a thinner trailing edge there")
             break
     return out
 
