@@ -189,3 +189,15 @@ def test_a_crossing_section_is_refused_naming_its_stations_and_what_passes(write
         build_models(load_spec(p))
     msg = str(exc.value)
     assert 'surface "w"' in msg and "station[0]" in msg and "what passes:" in msg
+
+
+def test_a_trailing_edge_too_thick_between_stations_names_both_stations(write_spec):
+    """A smooth chord curve dips between stations; the trailing edge it cannot carry there is
+    refused with the place between the two stations named (issue 15)."""
+    st = [dict(y=0, chord=200), dict(y=300, chord=150), dict(y=400, chord=20), dict(y=450, chord=25)]
+    p = write_spec(wing_spec(te=0.5, mirror=False, interpolation="smooth", stations=st, section='naca = "0006"'))
+    with pytest.raises(SpecError) as exc:
+        build_models(load_spec(p))
+    (msg,) = exc.value.problems
+    assert '"w" te_thickness' in msg
+    assert "between station[2] (y=400) and station[3] (y=450)" in msg and "what passes: te_thickness <=" in msg

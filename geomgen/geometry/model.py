@@ -102,6 +102,18 @@ def chord_problems(model: SurfaceModel) -> list[str]:
     return out
 
 
+def station_place(ys: list[float], y: float) -> str:
+    """Where span position ``y`` lies among the stations, for messages: "station[j] (y=…)",
+    "between station[i] (y=…) and station[i+1] (y=…)" or "in the round tip beyond station[k] (y=…)"."""
+    for j, v in enumerate(ys):
+        if abs(v - y) < 1e-9:
+            return f"station[{j}] (y={v:g})"
+    if y > ys[-1]:
+        return f"in the round tip beyond station[{len(ys) - 1}] (y={ys[-1]:g})"
+    i = max(0, min(len(ys) - 2, int(np.searchsorted(ys, y, side="right")) - 1))
+    return f"between station[{i}] (y={ys[i]:g}) and station[{i + 1}] (y={ys[i + 1]:g})"
+
+
 def check_geometry(model: SurfaceModel, where) -> list[str]:
     """Geometry that cannot be made: chord <= 0 between stations, a section that crosses itself.
 
@@ -118,11 +130,7 @@ def check_geometry(model: SurfaceModel, where) -> list[str]:
     for y in where:
         loop = model.section(y).loop(48)
         if polygon_crosses_itself(loop):
-            st = [float(v) for v in model.planform.y]
-            i = max(0, min(len(st) - 2, int(np.searchsorted(st, y, side="right")) - 1))
-            at = (f"at station[{i}]" if abs(y - st[i]) < 1e-9 else
-                  f"at station[{i + 1}]" if abs(y - st[i + 1]) < 1e-9 else
-                  f"between station[{i}] (y={st[i]:g}) and station[{i + 1}] (y={st[i + 1]:g})")
+            at = station_place([float(v) for v in model.planform.y], y)
             out.append(f'surface "{model.name}": the section at y = {y:.1f} mm ({at}) crosses itself (its upper '
                        "and lower surfaces meet); what passes: a thicker section or a thinner trailing edge there")
             break
@@ -181,7 +189,8 @@ def build_models(spec, source: str | Path = "<spec>") -> list[SurfaceModel]:
         bad = _check_trailing_edge(model, where)
         if bad:
             y, limit, t = min(bad, key=lambda b: b[1])
-            at = next((f"station[{j}] (y={s.y:g})" for j, s in enumerate(st) if abs(s.y - y) < 1e-9), f"y={y:.1f} mm")
+            at = station_place([s.y for s in st], y)
+            at = at if at.startswith("station") else f"y={y:.1f} mm ({at})"
             problems.append(
                 f'{src}: surface[{i}] "{sf.name}" te_thickness: {sf.te_thickness:g} mm is thicker than the '
                 f"section allows at {at}: at most {limit:.2f} mm (half the {t:.2f} mm thickness at "
