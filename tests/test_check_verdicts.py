@@ -277,3 +277,16 @@ def test_small_part_stl_wetted_area(tmp_path, write_spec):
     res = check_of(write_spec, tmp_path, wing_spec(te=0.0, mirror=False, reference=0.0, section='naca = "21012"',
                                                    stations=[dict(y=0, chord=40), dict(y=5, chord=10)]))
     assert faults(res) == []
+
+
+@pytest.mark.parametrize("mirror,span,area_cm2", [(False, 100.0, 10.0), (True, 200.0, 20.0)])
+def test_stl_allowance_of_the_mac_span_position_is_the_chord_error_bound(mirror, span, area_cm2):
+    """A 10 mm chord over 100 mm from the root (ȳ = 50 mm): chords within 2·tol move ȳ by at
+    most tol (ȳ² + (l − ȳ)²) / (A − 2 tol l) = 0.05 · 5000 / 990 mm; the STEP keeps 0.05 mm."""
+    from geomgen import defaults
+    from geomgen.check.compare import build_tolerances
+
+    it = {"mac_y_mm": 50.0, "projected_area_cm2": area_cm2, "span_mm": span}
+    step, stl = build_tolerances("mac_y_mm", it, 0.05, span, mirror)
+    assert step == defaults.CHECK_LENGTH_MM
+    assert stl == pytest.approx(defaults.CHECK_LENGTH_MM + 0.05 * 5000 / 990)

@@ -117,7 +117,7 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
         intended = intended_figures(m).as_dict()
         expect = {k: getattr(sspec.expect, k) for k in type(sspec.expect).model_fields} if sspec.expect else {}
         records += compare_part(m.name, intended, ms["figures"], st["figures"], project.stl_tol,
-                                {k: v for k, v in expect.items() if v is not None})
+                                {k: v for k, v in expect.items() if v is not None}, mirror=m.mirror)
         records += station_records(m.name, m, ms["stations"], sspec.check_at)
         t_sec = time.perf_counter()
         sec_recs, sec_table = section_records(m.name, m, ms["stations"], ms["axis"], sspec.check_at, expect)
