@@ -70,18 +70,40 @@ def worker(seed: int, cases: int, log: Path, timeout: int) -> None:
     one()
 
 
-def replay(params_json: str) -> None:
-    sys.path.insert(0, str(HERE))
-    from fuzz_specs import run_cli_case, spec_text
-
+def _params(params_json: str) -> dict:
     p = json.loads(params_json)
     if p.get("file_a"):
         p["file_a"] = tuple(p["file_a"])
     p["position"] = tuple(p["position"])
+    return p
+
+
+def replay(params_json: str) -> None:
+    sys.path.insert(0, str(HERE))
+    from fuzz_specs import run_cli_case, spec_text
+
+    p = _params(params_json)
     d = Path(tempfile.mkdtemp(prefix="gfz-replay"))
     print(spec_text(p))
     print(run_cli_case(p, d))
     print("folder:", d)
+
+
+def recheck(log: Path) -> int:
+    """Run every case a log records with a problem again (after a fix): 0 if all pass now."""
+    sys.path.insert(0, str(HERE))
+    from fuzz_specs import run_cli_case
+
+    _, faults = summary(log)
+    still = 0
+    for f in faults:
+        d = Path(tempfile.mkdtemp(prefix="gfz-recheck"))
+        outcome, detail, problem = run_cli_case(_params(f[4]), d)
+        shutil.rmtree(d, ignore_errors=True)
+        still += bool(problem)
+        print(f"{f[1]} then -> {outcome} now" + (f": {problem}: {detail[:300]}" if problem else ""))
+    print(f"{len(faults)} logged cases with a problem; {still} still have one")
+    return 1 if still else 0
 
 
 def summary(log: Path) -> tuple[collections.Counter, list[list[str]]]:
@@ -107,7 +129,10 @@ def main() -> int:
     ap.add_argument("--case-timeout", type=int, default=300)
     ap.add_argument("--worker", action="store_true", help=argparse.SUPPRESS)
     ap.add_argument("--replay", help="parameters (JSON) of one logged case: run it again and show it")
+    ap.add_argument("--recheck", type=Path, help="a log: run every case it records with a problem again")
     a = ap.parse_args()
+    if a.recheck:
+        return recheck(a.recheck)
     if a.replay:
         replay(a.replay)
         return 0
