@@ -46,6 +46,13 @@ def worker(seed: int, cases: int, log: Path, timeout: int) -> None:
     from fuzz_specs import run_cli_case, spec_params
 
     signal.signal(signal.SIGALRM, _alarm)
+    # a crash of the process (the CAD kernel) must name its case: the Python stack goes to a
+    # crash file, and the running case's parameters sit in a file the parent reads on a crash
+    import faulthandler
+
+    crash_file = open(_side(log, seed, "crash.txt"), "w")
+    faulthandler.enable(file=crash_file)
+    running = _side(log, seed, "running.json")
 
     @hseed(seed)
     @settings(max_examples=cases, database=None, phases=[Phase.generate], deadline=None,
@@ -53,6 +60,7 @@ def worker(seed: int, cases: int, log: Path, timeout: int) -> None:
     @given(spec_params(files=True))
     def one(params):
         d = Path(tempfile.mkdtemp(prefix="gfz"))
+        running.write_text(json.dumps(params))
         signal.alarm(timeout)
         try:
             outcome, detail, problem = run_cli_case(params, d)
@@ -68,13 +76,28 @@ def worker(seed: int, cases: int, log: Path, timeout: int) -> None:
                                json.dumps(params) if problem else ""]) + "\n")
 
     one()
+    running.unlink(missing_ok=True)
+
+
+def _side(log: Path, seed: int, what: str) -> Path:
+    return log.with_name(f"{log.name}.{seed}.{what}")
+
+
+def _crashed(log: Path, seed: int, code: int) -> None:
+    """Log the case a worker died on (signal or exit code), with its parameters and stack."""
+    running, crash = _side(log, seed, "running.json"), _side(log, seed, "crash.txt")
+    params = running.read_text() if running.exists() else "{}"
+    stack = crash.read_text().replace("\n", " | ")[-600:] if crash.exists() else ""
+    with open(log, "a") as f:
+        f.write("\t".join([str(seed), "crash", f"the worker died (code {code})", stack, params]) + "\n")
 
 
 def _params(params_json: str) -> dict:
     p = json.loads(params_json)
     if p.get("file_a"):
         p["file_a"] = tuple(p["file_a"])
-    p["position"] = tuple(p["position"])
+    if "position" in p:
+        p["position"] = tuple(p["position"])
     return p
 
 
@@ -152,6 +175,8 @@ def main() -> int:
         for p in [p for p in running if p.poll() is not None]:
             running.remove(p)
             done += 1
+            if p.returncode != 0:
+                _crashed(a.log, int(p.args[p.args.index("--seed") + 1]), p.returncode)
             counts, faults = summary(a.log) if a.log.exists() else (collections.Counter(), [])
             print(f"[{time.time() - t0:7.0f} s] chunks done {done}: {sum(counts.values())} cases "
                   f"{dict(counts)}; with a problem {len(faults)}"
