@@ -59,16 +59,19 @@ class Skin:
     def v_range(self) -> tuple[float, float]:
         return float(self.tv[0]), float(self.tv[-1])
 
-    def area(self, nodes: int = 4) -> float:
-        """Surface area, mm², by Gauss-Legendre quadrature on every knot span."""
-        def gauss(t, deg):
+    def area(self, nodes: int = 6, span_nodes: int = 16) -> float:
+        """Surface area, mm², by Gauss-Legendre quadrature on every knot span (``nodes`` a
+        chordwise span, ``span_nodes`` a spanwise one). |Sᵤ × Sᵥ| is not a polynomial: 4 × 4
+        nodes read a 10 mm-span round-tipped part 0.11 % low (found by the long CLI run);
+        6 × 16 agree with 8 × 32 to 3e-7 there and to 1e-12 on the demo wing."""
+        def gauss(t, deg, nodes):
             kn = np.unique(t[deg:len(t) - deg])
             xg, wg = np.polynomial.legendre.leggauss(nodes)
             a, b = kn[:-1, None], kn[1:, None]
             return (0.5 * (b - a) * xg + 0.5 * (a + b)).ravel(), (0.5 * (b - a) * wg).ravel()
 
-        u, wu = gauss(self.tu, self.du)
-        v, wv = gauss(self.tv, self.dv)
+        u, wu = gauss(self.tu, self.du, nodes)
+        v, wv = gauss(self.tv, self.dv, span_nodes)
         su, sv = self.derivatives(u, v)
         return float(wu @ np.linalg.norm(np.cross(su, sv), axis=-1) @ wv)
 

@@ -306,20 +306,20 @@ def skin_volume_centroid(skin: Skin) -> tuple[float, np.ndarray]:
     return abs(float(acc[0])), acc[1:] / acc[0]
 
 
-def skin_surface_area(skin: Skin, nodes: int = 8) -> float:
+def skin_surface_area(skin: Skin, nodes: int = 6, span_nodes: int = 16) -> float:
     """Surface of the solid bounded by a skin (mm²): the skin itself, its ruled trailing-edge
     strip (between the u = 0 and u = 1 edges; zero when they coincide) and the two plane end
     caps closed by the strip's end line, all from the skin's own poles and knots.
 
     Skin and strip by Gauss-Legendre quadrature on every knot span (the integrand |Sᵤ × Sᵥ| is
-    smooth inside a span; 8 nodes take it to far below the 1e-3 check tolerance, see
+    smooth inside a span; 6 × 16 nodes take it to far below the 1e-3 check tolerance, see
     tests/test_check.py). Each cap by its vector area ½∮ r × dr along the end curve
     S(u, v_end) plus ½ S(1) × S(0) for the closing line: a polynomial of degree 2·du − 1 on
     each span, integrated exactly. A round tip closes the skin and its cap is zero.
     """
-    total = skin.area(nodes)
+    total = skin.area(nodes, span_nodes)
     u, wu = _gauss_params(skin.tu, skin.du, nodes)
-    v, wv = _gauss_params(skin.tv, skin.dv, nodes)
+    v, wv = _gauss_params(skin.tv, skin.dv, span_nodes)
     e = skin.evaluate([0.0, 1.0], v)  # (2, nv, 3)
     _, ev = skin.derivatives([0.0, 1.0], v)
     tg, tw = np.polynomial.legendre.leggauss(nodes)
