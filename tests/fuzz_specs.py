@@ -11,7 +11,7 @@ import os
 from hypothesis import HealthCheck, settings
 from hypothesis import strategies as st
 
-settings.register_profile("fast", max_examples=25, deadline=None,
+settings.register_profile("fast", max_examples=25, deadline=None, derandomize=True,
                           suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
 settings.register_profile("long", max_examples=10_000, deadline=None,
                           suppress_health_check=list(HealthCheck))

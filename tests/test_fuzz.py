@@ -65,12 +65,12 @@ def test_valid_specs_give_watertight_meshes_matching_the_intended_volume(params)
 
 
 @pytest.mark.slow
-@settings(max_examples=6 if PROFILE == "fast" else 300)
+@settings(max_examples=6 if PROFILE == "fast" else 300, derandomize=PROFILE == "fast")
 @given(spec_params())
 def test_valid_specs_give_valid_solids_measured_as_intended(params):
     """Through the kernel: a valid solid whose STEP volume and outline match the intended."""
     from geomgen.cad.shape import SurfaceShape as Part
-    from geomgen.cad.loft import check_solid, volume_mm3
+    from geomgen.cad.loft import check_solid
     from geomgen.cad.measure import measure_solid
     from geomgen.check.measure import measure_step_solid
 
@@ -85,8 +85,10 @@ def test_valid_specs_give_valid_solids_measured_as_intended(params):
         assert "part" in str(exc)
         return
     assert check_solid(solid) == []
-    assert volume_mm3(solid) == pytest.approx(f.volume_cm3 * 1000, rel=1e-3)
     meas = measure_step_solid(measure_solid("part", solid))["figures"]
+    # the volume of the solid's skin by its exact quadrature (the kernel's own integral read
+    # 0.16-0.21 % off on some generated parts at any accuracy asked: see check.measure)
+    assert meas["volume_cm3"] == pytest.approx(f.volume_cm3, rel=1e-3)
     assert meas["span_mm"] == pytest.approx(f.span_mm, abs=0.05)
     assert meas["projected_area_cm2"] == pytest.approx(f.projected_area_cm2, rel=2e-3)
 
