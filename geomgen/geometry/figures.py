@@ -144,21 +144,11 @@ def centroid(model) -> np.ndarray:
 
 
 def surface_area(model) -> float:
-    """Total surface of the solid, mm²: skin, trailing-edge strip and end caps."""
-    skin = model.skin
-    total = skin.area()
-    if model.te_open:  # ruled strip between the skin's two edge rows
-        v0, v1 = skin.v_range
-        xg, wg = np.polynomial.legendre.leggauss(8)
-        kn = np.unique(skin.tv)
-        for a, b in zip(kn[:-1], kn[1:]):
-            v = 0.5 * (b - a) * xg + 0.5 * (a + b)
-            p = skin.evaluate([0.0, 1.0], v)  # (2, nv, 3)
-            _, dv = skin.derivatives([0.0, 1.0], v)
-            for t, wt in zip(0.5 * xg + 0.5, 0.5 * wg):
-                su = p[1] - p[0]
-                sv = (1 - t) * dv[0] + t * dv[1]
-                total += wt * float(0.5 * (b - a) * wg @ np.linalg.norm(np.cross(su, sv), axis=1))
+    """Total surface of the solid, mm²: skin and trailing-edge strip (the integral the check
+    applies to the written file's skin) and the end caps as the model's section areas."""
+    from .slices import skin_and_strip_area
+
+    total = skin_and_strip_area(model.skin)
     ends = [model.y_range[0], model.y_range[1]]
     for e in ends:
         total += model.section(e).area(1000) * float(model.chord(e)) ** 2

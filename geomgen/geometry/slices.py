@@ -306,6 +306,24 @@ def skin_volume_centroid(skin: Skin) -> tuple[float, np.ndarray]:
     return abs(float(acc[0])), acc[1:] / acc[0]
 
 
+def skin_and_strip_area(skin: Skin, nodes: int = 6, span_nodes: int = 16) -> float:
+    """Area (mm²) of a skin and of its ruled trailing-edge strip (between the u = 0 and u = 1
+    edges; zero when they coincide), by Gauss-Legendre quadrature on every knot span (the
+    integrand is smooth inside a span). The one integral of these two surfaces, shared by the
+    intended figure (:func:`geomgen.geometry.figures.surface_area`, the model's skin) and the
+    measured one (:func:`skin_surface_area`, the file's skin)."""
+    total = skin.area(nodes, span_nodes)
+    v, wv = _gauss_params(skin.tv, skin.dv, span_nodes)
+    e = skin.evaluate([0.0, 1.0], v)  # (2, nv, 3)
+    _, ev = skin.derivatives([0.0, 1.0], v)
+    tg, tw = np.polynomial.legendre.leggauss(nodes)
+    su = e[0] - e[1]
+    for t, wt in zip(0.5 * tg + 0.5, 0.5 * tw):
+        sv = (1 - t) * ev[1] + t * ev[0]
+        total += wt * float(wv @ np.linalg.norm(np.cross(su, sv), axis=-1))
+    return total
+
+
 def skin_surface_area(skin: Skin, nodes: int = 6, span_nodes: int = 16) -> float:
     """Surface of the solid bounded by a skin (mm²): the skin itself, its ruled trailing-edge
     strip (between the u = 0 and u = 1 edges; zero when they coincide) and the two plane end
@@ -317,16 +335,8 @@ def skin_surface_area(skin: Skin, nodes: int = 6, span_nodes: int = 16) -> float
     S(u, v_end) plus ½ S(1) × S(0) for the closing line: a polynomial of degree 2·du − 1 on
     each span, integrated exactly. A round tip closes the skin and its cap is zero.
     """
-    total = skin.area(nodes, span_nodes)
+    total = skin_and_strip_area(skin, nodes, span_nodes)
     u, wu = _gauss_params(skin.tu, skin.du, nodes)
-    v, wv = _gauss_params(skin.tv, skin.dv, span_nodes)
-    e = skin.evaluate([0.0, 1.0], v)  # (2, nv, 3)
-    _, ev = skin.derivatives([0.0, 1.0], v)
-    tg, tw = np.polynomial.legendre.leggauss(nodes)
-    su = e[0] - e[1]
-    for t, wt in zip(0.5 * tg + 0.5, 0.5 * tw):
-        sv = (1 - t) * ev[1] + t * ev[0]
-        total += wt * float(wv @ np.linalg.norm(np.cross(su, sv), axis=-1))
     v_ends = list(skin.v_range)
     r = skin.evaluate(u, v_ends)  # (nu, 2, 3)
     dr, _ = skin.derivatives(u, v_ends)

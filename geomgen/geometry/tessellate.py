@@ -42,13 +42,19 @@ def quad_deviation(skin: Skin, u: np.ndarray, v: np.ndarray) -> tuple[np.ndarray
     """(deviation (nu-1, nv-1) mm, split along b-d?) of every grid quad: the distance of the
     skin's point at the quad's parameter centre from the nearer of the two triangles' planes,
     for the better of the two diagonals (a-c or b-d)."""
+    dev, use_bd, _ = _quad_test(skin, u, v)
+    return dev, use_bd
+
+
+def _quad_test(skin: Skin, u: np.ndarray, v: np.ndarray):
+    """:func:`quad_deviation` and the grid points (nu, nv, 3) it was measured on."""
     g = skin.evaluate(u, v)
     ctr = skin.evaluate(0.5 * (u[1:] + u[:-1]), 0.5 * (v[1:] + v[:-1]))
     a, b, c, d = g[:-1, :-1], g[1:, :-1], g[1:, 1:], g[:-1, 1:]
     dev_ac = np.minimum(_plane_distance(ctr, a, b, c), _plane_distance(ctr, a, c, d))
     dev_bd = np.minimum(_plane_distance(ctr, a, b, d), _plane_distance(ctr, b, c, d))
     use_bd = dev_bd < dev_ac
-    return np.where(use_bd, dev_bd, dev_ac), use_bd
+    return np.where(use_bd, dev_bd, dev_ac), use_bd, g
 
 
 def _refine_quads(skin: Skin, u: np.ndarray, v: np.ndarray, tol: float, max_rounds: int = 6):
@@ -58,18 +64,14 @@ def _refine_quads(skin: Skin, u: np.ndarray, v: np.ndarray, tol: float, max_roun
     tens of mm along the chord within 1 mm of span) bulging 0.09 mm off their triangles at a
     0.05 mm tolerance, and their triangles added 0.2 % of area (found by the long CLI run)."""
     for _ in range(max_rounds):
-        dev, use_bd = quad_deviation(skin, u, v)
+        dev, use_bd, g = _quad_test(skin, u, v)
         bad = dev > tol
         if not bad.any():
-            break
-        bu, bv = bad.any(axis=1), bad.any(axis=0)
+            return u, v, use_bd
         # split in the direction whose edges are longer in space (the quad's long side)
-        g = skin.evaluate(u, v)
         lu = np.linalg.norm(g[1:, :-1] - g[:-1, :-1], axis=-1)
         lv = np.linalg.norm(g[:-1, 1:] - g[:-1, :-1], axis=-1)
-        split_u = bad & (lu >= lv)
-        split_v = bad & (lu < lv)
-        bu, bv = split_u.any(axis=1), split_v.any(axis=0)
+        bu, bv = (bad & (lu >= lv)).any(axis=1), (bad & (lu < lv)).any(axis=0)
         u = np.sort(np.concatenate([u, 0.5 * (u[1:] + u[:-1])[bu]]))
         v = np.sort(np.concatenate([v, 0.5 * (v[1:] + v[:-1])[bv]]))
     return u, v, quad_deviation(skin, u, v)[1]
