@@ -52,7 +52,28 @@ def test_a_full_disk_gives_exit_3_cannot_write(full_disk, command):
         r = CliRunner().invoke(main, [command, str(spec), "-o", str(mnt)])
         assert r.exit_code == 3, r.output
         assert "Traceback" not in r.output
-        # names the file (the kernel's STEP writer reports no reason; the others say the disk is full)
+        # names the file and why (the kernel's STEP writer reports no reason of its own: the
+        # folder's free space gives it)
         assert re.search(r"cannot write: \S+\.(step|stl|3mf|md|txt|json|html|png|dxf|svg|csv)\b", r.output), r.output
+        assert re.search(r"no space left on (the )?device", r.output, re.I), r.output
         assert "another geomgen run" not in r.output
         assert snapshot(mnt) == before  # nothing half-written, no staging folder, no lock file
+
+
+@pytest.mark.slow
+def test_the_step_writer_on_a_full_disk_says_why(full_disk):
+    """The kernel's STEP writer returns only "failed": the error adds the reason from the
+    folder (here: no space left), and the file is named."""
+    from types import SimpleNamespace
+
+    from OCP.BRepPrimAPI import BRepPrimAPI_MakeBox
+
+    from geomgen.cad.export import write_step
+    from geomgen.errors import ExportError
+
+    _, mnt = full_disk
+    box = SimpleNamespace(name="box", solid=BRepPrimAPI_MakeBox(200.0, 100.0, 50.0).Shape())
+    with pytest.raises(ExportError) as err:
+        write_step([box], mnt / "box.step", {})
+    assert "box.step" in str(err.value)
+    assert re.search(r"no space left on (the )?device", str(err.value), re.I), str(err.value)

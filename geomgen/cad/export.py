@@ -9,6 +9,8 @@ into a staging folder and move files into place only when all succeeded.
 
 from __future__ import annotations
 
+import errno
+import os
 from pathlib import Path
 
 import numpy as np
@@ -54,11 +56,27 @@ def write_step(parts, path: Path, options: dict) -> None:
         raise ExportError(f"{path}: STEP transfer failed")
     _fixed_header(writer, Path(path).name)
     if writer.Write(str(path)) != IFSelect_RetDone:
-        raise ExportError(f"{path}: STEP writer failed")
+        raise ExportError(f"{path}: STEP writer failed{_why_not_written(Path(path))}")
     if len(parts) > 1:
         _renumber_occurrences(Path(path))
     if not Path(path).is_file() or Path(path).stat().st_size == 0:
         raise ExportError(f"{path}: STEP writer produced no file")
+
+
+def _why_not_written(path: Path) -> str:
+    """The likely reason a file could not be written, read from the folder (the kernel's STEP
+    writer reports only that it failed, no operating-system error)."""
+    folder = path.parent
+    try:
+        if not os.access(folder, os.W_OK):
+            return f" ({os.strerror(errno.EACCES).lower()} in {folder})"
+        st = os.statvfs(folder)
+        free = st.f_bavail * st.f_frsize
+        if free < 1 << 20:
+            return f" ({os.strerror(errno.ENOSPC).lower()}: {free // 1024} KiB free)"
+    except OSError:
+        pass
+    return ""
 
 
 #: The STEP header's time stamp is fixed so the same spec and version give the same bytes;
