@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -164,3 +165,56 @@ def test_resample_keeps_the_edges():
     r = resample_sides(p, 500, 40)
     assert len(r) == 79
     assert r[0] == pytest.approx(p[0]) and r[-1] == pytest.approx(p[-1]) and r[39] == pytest.approx(p[500])
+
+
+
+def _sharp_edged_polygons():
+    """The torsion polygon (upper TE -> LE -> lower TE) of a sharp-edged 40 mm section on which
+    the long CLI run crashed: its first and last points are 8.7e-18 mm apart, one point once
+    sectionproperties rounds them; and the same with the two exactly equal."""
+    import json
+
+    data = json.loads((Path(__file__).parent / "data" / "sharp_edge_torsion_polygon.json").read_text())
+    near = np.array(data["points_mm"])
+    exact = near.copy()
+    exact[-1] = exact[0]
+    return near, exact
+
+def test_the_torsion_mesher_gets_no_repeated_point(monkeypatch):
+    """Triangle (the mesher under sectionproperties) corrupts its memory on repeated points and
+    crashed the process some calls later (found by the long CLI run on a sharp-edged 8 mm
+    tip): the polygon it is given holds each point once."""
+    import sectionproperties.pre.pre as pre
+
+    seen = []
+    real = pre.create_mesh
+
+    def spy(points, *args, **kwargs):
+        seen.append(np.asarray(points, float))
+        return real(points, *args, **kwargs)
+
+    monkeypatch.setattr(pre, "create_mesh", spy)
+    for poly in _sharp_edged_polygons():
+        assert warping_j(poly) > 0
+    for pts in seen:
+        gaps = np.linalg.norm(pts[:, None, :] - pts[None, :, :], axis=-1) + np.eye(len(pts))
+        assert gaps.min() > 1e-9, gaps.min()
+
+
+@pytest.mark.slow
+def test_many_torsion_solutions_of_sharp_edged_sections_do_not_crash(tmp_path):
+    """The crash itself, in a separate process: 60 rounds crashed within 30 before the fix."""
+    import subprocess
+    import sys
+
+    script = tmp_path / "loop.py"
+    script.write_text(
+        "import sys\nsys.path.insert(0, %r)\n" % str(Path(__file__).parent)
+        + "from test_sectionprops import _sharp_edged_polygons\n"
+        "from geomgen.geometry.sectionprops import warping_j\n"
+        "polys = _sharp_edged_polygons()\n"
+        "for _ in range(60):\n"
+        "    for p in polys:\n"
+        "        warping_j(p)\n")
+    r = subprocess.run([sys.executable, str(script)], capture_output=True, text=True, timeout=600)
+    assert r.returncode == 0, r.stderr[-2000:]

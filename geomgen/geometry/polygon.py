@@ -1,8 +1,20 @@
-"""Plane polygons: the self-crossing test shared by the section check and the hot-wire paths."""
+"""Plane polygons: repeated points, and the self-crossing test shared by the section check and
+the hot-wire paths."""
 
 from __future__ import annotations
 
 import numpy as np
+
+
+def without_repeats(p: np.ndarray, rel: float = 1e-12) -> np.ndarray:
+    """The closed polygon ``p`` (n, 2) without points within ``rel`` x its size of the point
+    before them (the last point counts as before the first): a sharp trailing edge written as
+    both the first and the last point keeps one of them."""
+    p = np.asarray(p, float)
+    scale = float(np.ptp(p, axis=0).max()) if len(p) else 0.0
+    if scale <= 0.0:
+        return p[:1]
+    return p[np.linalg.norm(p - np.roll(p, 1, axis=0), axis=1) > rel * scale]
 
 
 def polygon_crosses_itself(p: np.ndarray, block: int = 256) -> bool:
@@ -14,15 +26,11 @@ def polygon_crosses_itself(p: np.ndarray, block: int = 256) -> bool:
     (Without both, a sharp-edged section whose closing point differed from its first by
     1e-19 was "crossing itself" at the edge and refused: found by the long CLI property run.)
     """
-    p = np.asarray(p, float)
-    scale = float(np.ptp(p, axis=0).max()) if len(p) else 0.0
-    if scale <= 0.0:
-        return False
-    keep = np.linalg.norm(p - np.roll(p, 1, axis=0), axis=1) > 1e-12 * scale
-    p = p[keep]
+    p = without_repeats(p, 1e-12)
     n = len(p)
     if n < 4:
         return False
+    scale = float(np.ptp(p, axis=0).max())
     a, b = p, np.roll(p, -1, axis=0)
     eps = 1e-12 * scale * scale
 

@@ -43,6 +43,9 @@ J_POINTS_PER_SIDE = 50
 #: Largest triangle of the warping mesh, as a fraction of the section area (a floor for
 #: polygons with few points; an aerofoil's mesh is set by its points).
 MESH_MIN_ELEMENTS = 50
+#: Polygon points closer than this fraction of the section's size to the point before them are
+#: one point for the mesher.
+MESH_POINT_GAP = 1e-6
 
 
 @dataclass
@@ -156,7 +159,12 @@ def warping_j(p2: np.ndarray) -> float:
     from sectionproperties.pre.geometry import Geometry
     from shapely.geometry import Polygon
 
-    poly = Polygon(p2)
+    from .polygon import without_repeats
+
+    # no repeated points reach the mesher: a sharp trailing edge written first and last (or
+    # 1e-17 mm apart) made Triangle corrupt its memory and crash the process some calls later
+    # (found by the long CLI run; tests/test_sectionprops.py)
+    poly = Polygon(without_repeats(p2, MESH_POINT_GAP))
     if not poly.is_valid:
         poly = _largest(poly.buffer(0))
     geom = Geometry(poly)
