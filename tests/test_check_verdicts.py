@@ -290,3 +290,17 @@ def test_stl_allowance_of_the_mac_span_position_is_the_chord_error_bound(mirror,
     step, stl = build_tolerances("mac_y_mm", it, 0.05, span, mirror)
     assert step == defaults.CHECK_LENGTH_MM
     assert stl == pytest.approx(defaults.CHECK_LENGTH_MM + 0.05 * 5000 / 990)
+
+
+def test_a_figure_that_is_not_a_number_is_a_fault():
+    """A measurement that comes out NaN (the torsion solver gave one on a sharp edge before its
+    mesher got clean input) must show as a fault, not pass a ``>`` comparison silently."""
+    from geomgen.check.compare import compare_part, outside
+
+    assert outside(math.nan, 1.0, 0.1) and outside(1.0, math.nan, 0.1) and outside(1.0, 1.0, math.nan)
+    assert not outside(1.05, 1.0, 0.1)
+    intended = intended_figures(model_of(wing_spec())).as_dict()
+    measured = dict(intended, mac_mm=math.nan)
+    recs = compare_part("wing", intended, measured, dict(intended), 0.05, {})
+    assert [r.figure for r in recs if r.fault] == ["mac_mm"]
+    assert [r.fault for r in recs if r.fault] == [["STEP"]]

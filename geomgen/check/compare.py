@@ -54,6 +54,12 @@ class Record:
         return asdict(self)
 
 
+def outside(value: float, intended: float, tol: float) -> bool:
+    """True when ``value`` is not within ``tol`` of ``intended``, a figure that is not a number
+    included (a NaN compared with ``>`` would pass silently)."""
+    return not abs(value - intended) <= tol
+
+
 def build_tolerances(fig: str, intended: dict, stl_tol: float, span: float,
                      mirror: bool = False) -> tuple[float, float]:
     """(STEP, STL) tolerance of a figure: how far the measurement may sit from the intended.
@@ -124,7 +130,7 @@ def compare_part(part: str, intended: dict, step: dict | None, stl: dict | None,
         rec.step = st.get(fig) if st else None
         rec.stl = sl.get(fig) if sl else None
         for kind, val, tol in (("STEP", rec.step, rec.tol_step), ("STL", rec.stl, rec.tol_stl)):
-            if val is not None and rec.intended is not None and abs(val - rec.intended) > tol:
+            if val is not None and rec.intended is not None and outside(val, rec.intended, tol):
                 rec.fault.append(kind)
         e = (expect or {}).get(fig)
         if e is not None:
@@ -172,7 +178,7 @@ def station_records(part: str, model, measured_stations: list, check_at: list) -
                 ("thickness_pct", f"  as % chord (at {ms['at_pct']:.1f} % chord)", "%", it["thickness_pct"],
                  ms["thickness_pct"], 100 * defaults.CHECK_THICKNESS_MM / c, None)):
             rec = Record(part, f"{fig}@{y:g}", label, unit, intended, step=meas, tol_step=tol)
-            if abs(meas - intended) > tol:
+            if outside(meas, intended, tol):
                 rec.fault.append("STEP")
             if exp is not None:
                 rec.expected, rec.expected_tol = exp.value, exp.tolerance_for(exp.value)
@@ -182,7 +188,7 @@ def station_records(part: str, model, measured_stations: list, check_at: list) -
             dev = float(polyline_distance(model.section_loop(y, 200), ms["points"]).max())
             rec = Record(part, f"profile@{y:g}", f"profile deviation at {y:g} mm", "mm", 0.0, step=dev,
                          tol_step=defaults.CHECK_LENGTH_MM, expected=0.0, expected_tol=ca.profile_tol)
-            if dev > defaults.CHECK_LENGTH_MM:
+            if outside(dev, 0.0, defaults.CHECK_LENGTH_MM):
                 rec.fault.append("STEP")
             rec.verdict = "pass" if dev <= ca.profile_tol else "FAIL"
             out.append(rec)

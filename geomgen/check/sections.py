@@ -7,7 +7,7 @@ import numpy as np
 
 from .. import defaults
 from ..geometry.sectionprops import SectionProps, model_section_properties, section_properties
-from .compare import Record
+from .compare import Record, outside
 
 #: key -> (label, unit, SectionProps field, check_at field, root expect field)
 SECTION_FIGURES = {
@@ -61,7 +61,7 @@ def section_records(part: str, model, measured_stations: list, axis: int, check_
             if iv is None:
                 continue
             rec = Record(part, f"{key}@{y:g}", f"  {label} at {y:g} mm", unit, iv, step=mv, tol_step=tol[key])
-            if mv is None or abs(mv - iv) > tol[key]:
+            if mv is None or outside(mv, iv, tol[key]):
                 rec.fault.append("STEP")
             exp = getattr(ca, ca_field) if (ca is not None and ca_field) else None
             if exp is None and root_field and abs(y - root_y) < 1e-9:
