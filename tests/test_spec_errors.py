@@ -115,6 +115,9 @@ def test_invalid_geometry_exit_3_nothing_written(write_spec, tmp_path):
     res = run_build(p, tmp_path / "out")
     assert res.exit_code == 3 and "Traceback" not in res.output
     assert "geometry error" in res.output and "nothing was written" in res.output
+    # names the file, the surface and the stations, as a spec error does
+    assert f'geometry error: {p}: surface "w" chord' in res.output, res.output
+    assert "station[0]" in res.output and "station[1]" in res.output
     assert not (tmp_path / "out").exists()
 
 

@@ -28,8 +28,11 @@ KIND = {SpecError: "spec error", GeometryError: "geometry error", ExportError: "
         CheckFailed: "check failed"}
 
 
-def _fail(exc: GeomgenError):
+def _fail(exc: GeomgenError, spec: str | None = None):
     lines = exc.problems if isinstance(exc, SpecError) else [str(exc)]
+    if isinstance(exc, GeometryError) and spec and not lines[0].startswith(str(spec)):
+        # the refusal comes from what the spec asks for: name the file, as spec errors do
+        lines = [f"{spec}: {lines[0]}"] + lines[1:]
     kind = next((w for cls, w in KIND.items() if isinstance(exc, cls)), "error")
     from ..defaults import MAX_ERROR_LINES
 
@@ -49,7 +52,7 @@ class Commands(click.Group):
         try:
             return super().invoke(ctx)
         except GeomgenError as exc:
-            _fail(exc)
+            _fail(exc, ctx.meta.get("geomgen.spec"))
         except OSError as exc:  # a disk or permission failure outside a writer: not a geometry error
             where = f"{exc.filename}: " if getattr(exc, "filename", None) else ""
             click.echo(f"cannot read or write: {where}{exc.strerror or exc}", err=True)
@@ -73,8 +76,13 @@ class _Progress:
 
 
 # -- shared options, defined once ------------------------------------------------------
+def _remember_spec(ctx, param, value):
+    ctx.meta["geomgen.spec"] = value  # meta is shared by every context of the run
+    return value
+
+
 def spec_argument(f):
-    return click.argument("spec", type=click.Path(dir_okay=False))(f)
+    return click.argument("spec", type=click.Path(dir_okay=False), callback=_remember_spec)(f)
 
 
 def out_option(f):
