@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .skin import Skin
+from .skin import Skin, gauss_params
 
 GAUSS = 4
 INTERVALS = 40
@@ -268,13 +268,6 @@ def chord_and_thickness(sl: np.ndarray, axis: int) -> dict:
             "at_pct": 100 * xs[k] / chord}
 
 
-def _gauss_params(t: np.ndarray, deg: int, nodes: int) -> tuple[np.ndarray, np.ndarray]:
-    kn = np.unique(t[deg:len(t) - deg])
-    xg, wg = np.polynomial.legendre.leggauss(nodes)
-    a, b = kn[:-1, None], kn[1:, None]
-    return (0.5 * (b - a) * xg + 0.5 * (a + b)).ravel(), (0.5 * (b - a) * wg).ravel()
-
-
 def skin_volume_centroid(skin: Skin) -> tuple[float, np.ndarray]:
     """(volume mm³, centroid (3,) mm) of the solid bounded by a skin, its ruled trailing-edge
     strip (between the skin's u = 0 and u = 1 edges; nothing when they coincide) and two end
@@ -286,8 +279,8 @@ def skin_volume_centroid(skin: Skin) -> tuple[float, np.ndarray]:
     for a bicubic skin, so 6 Gauss-Legendre nodes per span integrate them exactly.
     """
     nodes = max(skin.du, skin.dv) + 3
-    u, wu = _gauss_params(skin.tu, skin.du, nodes)
-    v, wv = _gauss_params(skin.tv, skin.dv, nodes)
+    u, wu = gauss_params(skin.tu, skin.du, nodes)
+    v, wv = gauss_params(skin.tv, skin.dv, nodes)
     p = skin.evaluate(u, v)
     su, sv = skin.derivatives(u, v)
     nx = np.cross(su, sv)[..., 0] * (wu[:, None] * wv[None, :])
@@ -313,7 +306,7 @@ def skin_and_strip_area(skin: Skin, nodes: int = 6, span_nodes: int = 16) -> flo
     intended figure (:func:`geomgen.geometry.figures.surface_area`, the model's skin) and the
     measured one (:func:`skin_surface_area`, the file's skin)."""
     total = skin.area(nodes, span_nodes)
-    v, wv = _gauss_params(skin.tv, skin.dv, span_nodes)
+    v, wv = gauss_params(skin.tv, skin.dv, span_nodes)
     e = skin.evaluate([0.0, 1.0], v)  # (2, nv, 3)
     _, ev = skin.derivatives([0.0, 1.0], v)
     tg, tw = np.polynomial.legendre.leggauss(nodes)
@@ -336,7 +329,7 @@ def skin_surface_area(skin: Skin, nodes: int = 6, span_nodes: int = 16) -> float
     each span, integrated exactly. A round tip closes the skin and its cap is zero.
     """
     total = skin_and_strip_area(skin, nodes, span_nodes)
-    u, wu = _gauss_params(skin.tu, skin.du, nodes)
+    u, wu = gauss_params(skin.tu, skin.du, nodes)
     v_ends = list(skin.v_range)
     r = skin.evaluate(u, v_ends)  # (nu, 2, 3)
     dr, _ = skin.derivatives(u, v_ends)
