@@ -35,11 +35,13 @@ def record(res, fig):
 
 
 # -- one definition of chord and thickness (no kernel) ---------------------------------
-def test_cambered_chord_is_the_sections_largest_extent():
+def test_cambered_chord_is_the_typed_chord_and_the_extent_is_beside_it():
     """NACA 23012 at 150 mm: the upper surface lies ahead of the mean line's leading edge
     (perpendicular construction, NACA Report 537 / Abbott & von Doenhoff §6.6), so the
-    section's largest extent exceeds the nominal chord. The intended figure is that extent,
-    here recomputed by brute force from the section's own curves sampled 200,000 times."""
+    section's largest extent exceeds the nominal chord. The chord figure is the nominal chord
+    line (mean line's start to the trailing-edge midpoint): the typed 150 mm; the extent,
+    recomputed by brute force from the section's own curves sampled 200,000 times, is
+    reported beside it."""
     m = model_of(wing_spec(te=0.0, section='naca = "23012"\nclosed_te = true',
                            stations=[dict(y=0, chord=150), dict(y=300, chord=100)]))
     sec = m.section(0.0)
@@ -51,9 +53,10 @@ def test_cambered_chord_is_the_sections_largest_extent():
     pts = np.column_stack([np.concatenate([xu, xl]), np.concatenate([yu, yl])])
     brute = 150 * float(np.linalg.norm(pts - te, axis=1).max())
     f = section_figures(m, 0.0)
-    assert f["chord_mm"] == pytest.approx(brute, abs=2e-4)
-    assert f["chord_mm"] > 150.09
-    assert intended_figures(m).root_chord_mm == pytest.approx(f["chord_mm"], abs=1e-9)
+    assert f["chord_mm"] == pytest.approx(150.0, abs=1e-6)
+    assert f["extent_mm"] == pytest.approx(brute, abs=2e-4)
+    assert f["extent_mm"] > 150.09
+    assert intended_figures(m).root_chord_mm == pytest.approx(150.0, abs=1e-6)
     # a symmetric section: the extent is the nominal chord (to within the 0.5 mm edge's corner)
     m0 = model_of(wing_spec(te=0.5, stations=[dict(y=0, chord=150), dict(y=300, chord=100)]))
     assert section_figures(m0, 0.0)["chord_mm"] == pytest.approx(150.0, abs=1e-3)
@@ -95,7 +98,8 @@ def test_cambered_sections_check_clean(tmp_path, write_spec, naca, root, tip, te
         dict(y=0, chord=root), dict(y=300, chord=tip, twist=-3)]))
     assert faults(res) == []
     r = record(res, "root_chord_mm")
-    assert r.intended > root and abs(r.step - r.intended) <= 0.05
+    assert r.intended == pytest.approx(root, abs=1e-6) and abs(r.step - root) <= 2e-3  # the typed chord
+    assert record(res, "extent@0").intended > root  # the outline reaches ahead of the leading edge
 
 
 @pytest.mark.slow

@@ -10,12 +10,14 @@ from .. import defaults
 #: figure key -> (label, unit)
 FIGURES = {
     "span_mm": ("span", "mm"),
-    "projected_area_cm2": ("projected area", "cm²"),
+    "projected_area_cm2": ("planform area (reference plane)", "cm²"),
     "aspect_ratio": ("aspect ratio", ""),
     "mac_mm": ("MAC", "mm"),
     "mac_y_mm": ("MAC span position", "mm"),
     "mac_le_x_mm": ("MAC leading edge x", "mm"),
     "mac_qc_x_mm": ("MAC quarter chord x", "mm"),
+    "datum_area_cm2": ("area projected on the datum plane", "cm²"),
+    "datum_mac_mm": ("MAC of the datum projection", "mm"),
     "root_chord_mm": ("root chord", "mm"),
     "tip_chord_mm": ("tip chord", "mm"),
     "taper_ratio": ("taper ratio", ""),
@@ -80,8 +82,8 @@ def build_tolerances(fig: str, intended: dict, stl_tol: float, span: float,
         den = area - 2 * stl_tol * length
         chord_bound = stl_tol * (yb ** 2 + (length - yb) ** 2) / den if den > 0 else float("inf")
         return L, max(stl_len, L + chord_bound)
-    if fig == "projected_area_cm2":
-        return R * v, (R * area_mm2 + 2 * stl_tol * span) / 100
+    if fig in ("projected_area_cm2", "datum_area_cm2"):
+        return R * v, (R * v * 100 + 2 * stl_tol * span) / 100
     if fig == "aspect_ratio":
         return R * v, v * (R + 2 * stl_tol * span / area_mm2)
     if fig == "taper_ratio":
@@ -173,6 +175,8 @@ def station_records(part: str, model, measured_stations: list, check_at: list) -
         for fig, label, unit, intended, meas, tol, exp in (
                 ("chord", f"chord at {y:g} mm", "mm", c, ms["chord_mm"], defaults.CHECK_LENGTH_MM,
                  ca.chord if ca else None),
+                ("extent", "  outline's largest extent", "mm", it["extent_mm"], ms["extent_mm"],
+                 defaults.CHECK_LENGTH_MM, None),
                 ("thickness", f"max thickness at {y:g} mm", "mm", it["thickness_mm"], ms["thickness_mm"],
                  defaults.CHECK_THICKNESS_MM, ca.thickness if ca else None),
                 ("thickness_pct", f"  as % chord (at {ms['at_pct']:.1f} % chord)", "%", it["thickness_pct"],

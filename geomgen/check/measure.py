@@ -6,10 +6,10 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..geometry.slices import (Frame, Outline, SkinSlicer, chord_and_thickness, crease_positions, gauss_nodes,
-                              gauss_nodes_between, gauss_on_pieces, planform_figures,
-                              root_of, section_diameter, skin_grid, skin_surface_area, skin_volume_centroid, span_axis_of,
-                              span_axis_of_grid)
+from ..geometry.slices import (DATUM_PLANE, Frame, Outline, SkinSlicer, chord_and_thickness, chord_line_of_points,
+                              chord_lines, crease_positions, gauss_nodes, gauss_nodes_between, gauss_on_pieces,
+                              planform_figures, root_of, skin_grid, skin_surface_area, skin_volume_centroid,
+                              span_axis_of, span_axis_of_grid)
 
 
 def _direction(root: float, tip: float) -> float:
@@ -29,18 +29,29 @@ def measure_step_solid(ms, stations=(), frame: Frame | None = None) -> dict:
     lo, hi = float(ms.bbox_min[axis]), float(ms.bbox_max[axis])
     eps = 1e-7 * (hi - lo)
 
+    plane = frame.plane() if frame else DATUM_PLANE
+    le_at = frame.le_at if frame is not None else None
+
+    def hint(s):
+        return None if le_at is None else le_at(s)
+
     def extents(s):
-        sl = slicer.slice(np.clip(s, lo + eps, hi - eps))
-        return sl[:, :, 0].min(axis=1), np.ptp(sl[:, :, 0], axis=1), sl
+        s = np.clip(s, lo + eps, hi - eps)
+        sl = slicer.slice(s)
+        le, te = chord_lines(sl, hint(s))
+        return plane.along(le), (te - le) @ plane.e, sl
 
     # integrate piecewise between the skin's creases (a linear station is a kink in the outline)
     s, w = gauss_nodes_between([lo, hi] + [c for c in crease_positions(ms.skin, axis) if lo < c < hi])
-    x_le, c, _ = extents(s)
+    x_le, c, sl_all = extents(s)
+    dx = sl_all[:, :, 0]
     root, tip = frame.ends(lo, hi) if frame else root_of(lo, hi, lambda q: extents(q)[1])[:2]
     (xr, xt), (cr, ct), ends = extents(np.array([root, tip]))
-    cr_true = chord_and_thickness(ends[0], axis)["chord_mm"]
-    ct_true = chord_and_thickness(ends[1], axis)["chord_mm"]
-    fig = planform_figures(Outline(s, w, x_le, c), lo, hi, cr_true, ct_true, root, tip, xr + cr / 4, xt + ct / 4)
+    he = hint(np.clip(np.array([root, tip]), lo + eps, hi - eps))
+    cr_true = chord_and_thickness(ends[0], axis, None if he is None else he[0])["chord_mm"]
+    ct_true = chord_and_thickness(ends[1], axis, None if he is None else he[1])["chord_mm"]
+    fig = planform_figures(Outline(s, w, x_le, c, dx.min(axis=1), np.ptp(dx, axis=1)), lo, hi, cr_true, ct_true,
+                           root, tip, xr + cr / 4, xt + ct / 4)
     # the kernel's centre of mass was seen up to 0.09 mm off on constant-chord swept wings,
     # whatever accuracy it was asked for; the skin's exact quadrature is used instead
     # volume likewise: the kernel's volume integral read 0.21 % low (at any accuracy asked) on a
@@ -52,8 +63,11 @@ def measure_step_solid(ms, stations=(), frame: Frame | None = None) -> dict:
     d = frame.sign if frame else _direction(root, tip)
     st = []
     for y in stations:
-        _, _, sl = extents(np.array([root + d * float(y)]))
-        st.append({"y_mm": float(y), **chord_and_thickness(sl[0], axis), "points": sl[0]})
+        at = frame.at(y) if frame else root + d * float(y)
+        q = np.array([np.clip(at, lo + eps, hi - eps)])
+        sl = slicer.slice(q)[0]
+        h = hint(q)
+        st.append({"y_mm": float(y), **chord_and_thickness(sl, axis, None if h is None else h[0]), "points": sl})
     return {"figures": fig, "stations": st, "sampling_mm": dev, "axis": axis}
 
 
@@ -85,10 +99,17 @@ def measure_stl(path, frame: Frame | None = None) -> dict:
     edges = mesh.edges_unique
     eps = 1e-6 * (hi - lo)
 
+    plane = frame.plane() if frame else DATUM_PLANE
+    le_at = frame.le_at if frame is not None else None
+
     def extents(s):
-        sl = _mesh_slices(mesh.vertices, edges, axis, np.clip(s, lo + eps, hi - eps))
-        x_le = np.array([p[:, 0].min() for p in sl])
-        return x_le, np.array([np.ptp(p[:, 0]) for p in sl]), sl
+        s = np.clip(s, lo + eps, hi - eps)
+        sl = _mesh_slices(mesh.vertices, edges, axis, s)
+        hints = le_at(s) if le_at is not None else [None] * len(s)
+        lines = [chord_line_of_points(p, plane.e, h) for p, h in zip(sl, hints)]
+        le = np.array([v[0] for v in lines])
+        te = np.array([v[1] for v in lines])
+        return plane.along(le), (te - le) @ plane.e, sl, le, te
 
     # the mesh's outline is piecewise linear between its rows of vertices (a kink at a linear
     # station falls on a row): 3-point Gauss between consecutive rows integrates it piece by piece
@@ -97,12 +118,13 @@ def measure_stl(path, frame: Frame | None = None) -> dict:
         s, w = gauss_on_pieces(rows)
     else:
         s, w = gauss_nodes(lo, hi)
-    x_le, c, _ = extents(s)
+    x_le, c, sl_all, _, _ = extents(s)
+    dx_le = np.array([p[:, 0].min() for p in sl_all])
+    dc = np.array([np.ptp(p[:, 0]) for p in sl_all])
     root, tip = frame.ends(lo, hi) if frame else root_of(lo, hi, lambda q: extents(q)[1])[:2]
-    (xr, xt), (cr, ct), ends = extents(np.array([root, tip]))
-    fig = planform_figures(Outline(s, w, x_le, c), lo, hi, section_diameter(ends[0])[0],
-                           section_diameter(ends[1])[0], root, tip,
-                           xr + cr / 4, xt + ct / 4)
+    (xr, xt), (cr, ct), _, le_e, te_e = extents(np.array([root, tip]))
+    fig = planform_figures(Outline(s, w, x_le, c, dx_le, dc), lo, hi, float(np.linalg.norm(te_e[0] - le_e[0])),
+                           float(np.linalg.norm(te_e[1] - le_e[1])), root, tip, xr + cr / 4, xt + ct / 4)
     c_mass = np.asarray(mesh.center_mass, float)
     # how far a chordal error can move the centroid: the mesh and the surface differ by a
     # shell at most ``tol`` thick, so |Δc_k| <= tol · Σ A_i |x_ik − c_k| / V (per mm of tol)

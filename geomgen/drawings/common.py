@@ -139,6 +139,23 @@ class Cut:
         return outline_mm(self.section, self.chord, self.tol)
 
     @cached_property
+    def front(self) -> tuple[float, float]:
+        """(x, z) of the outline's foremost point in the chord frame, mm: x < 0 where a cambered
+        nose passes ahead of the leading edge (NACA 4415: by 0.07 % of the chord)."""
+        p = self.outline
+        i = int(np.argmin(p[:, 0]))
+        return float(p[i, 0]), float(p[i, 1])
+
+    @cached_property
+    def extent(self) -> float:
+        """The outline's largest extent (a caliper's reading), mm; a little over the chord on a
+        cambered section."""
+        from ..geometry.slices import section_diameter
+
+        p = np.column_stack([self.outline[:, 0], np.zeros(len(self.outline)), self.outline[:, 1]])
+        return section_diameter(p)[0]
+
+    @cached_property
     def te_mm(self) -> float:
         return self.section.te_thickness() * self.chord
 
@@ -161,9 +178,10 @@ class Cut:
         t, xt = self.thickness
         where = "station" if self.is_station else "extra position"
         both = ", both sides" if self.mirrored else ""
+        outline = f" (outline {self.extent:.2f} end to end)" if self.extent - self.chord > 0.005 else ""
         return [
             f"{self.surface}  y = {self.y:.1f} mm ({where}{both})",
-            f"chord {self.chord:.2f} mm   twist {self.twist:+.2f}{deg}   "
+            f"chord {self.chord:.2f} mm{outline}   twist {self.twist:+.2f}{deg}   "
             f"chord line {self.pitch:+.2f}{deg} to datum x (LE up +)",
             f"max thickness {t:.2f} mm ({t / self.chord:.1%}) at {xt:.1f} % chord   TE {self.te_mm:.2f} mm",
             f"{self.section.label}   reference point at {self.reference:.1%} chord   {side} up",

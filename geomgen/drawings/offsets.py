@@ -61,10 +61,17 @@ class OffsetRows:
 
 
 def offset_rows(cut: Cut, pct) -> OffsetRows:
-    """The offset table of one section at chord positions ``pct`` (% chord)."""
+    """The offset table of one section at chord positions ``pct`` (% chord), starting at the
+    outline's foremost point when a cambered nose passes ahead of the leading edge (x < 0:
+    one row there, upper = lower = that point's height)."""
     pct = np.asarray(pct, float)
     up, lo = heights(cut.section, pct / 100.0)
-    return OffsetRows(cut, pct, up * cut.chord, lo * cut.chord)
+    up, lo = up * cut.chord, lo * cut.chord
+    xf, zf = cut.front
+    if xf < -1e-4 and (not len(pct) or 100.0 * xf / cut.chord < pct.min()):
+        pct = np.concatenate([[100.0 * xf / cut.chord], pct])
+        up, lo = np.concatenate([[zf], up]), np.concatenate([[zf], lo])
+    return OffsetRows(cut, pct, up, lo)
 
 
 def write_offsets_csv(tables: list[OffsetRows], path, *, spec_name: str, model_name: str, side: str) -> None:
@@ -73,19 +80,23 @@ def write_offsets_csv(tables: list[OffsetRows], path, *, spec_name: str, model_n
     head = [
         f"geomgen {__version__} offset table: set '{spec_name}', surface '{model_name}'",
         f"CAUTION: {CAUTION}",
-        "units mm and deg; x along the chord line from the leading edge; upper_mm/lower_mm = height "
+        "units mm and deg; x along the chord line from the leading edge (the section's own: NACA the "
+        "mean line's start; chord = leading edge to trailing-edge midpoint, as typed); a first row at "
+        "x < 0 is the outline's foremost point, where a cambered nose passes ahead of the leading edge; "
+        "upper_mm/lower_mm = height "
         f"of the outline above (+) / below (-) the chord line, {side} positive",
         "each section in its own chord frame (twist and incidence not applied; the chord line makes "
         "twist + incidence with the datum x axis, leading edge up positive)",
         "a height is where a line square to the chord line at x cuts the outline (on each side the cut "
         "farthest from the chord line); finished trailing edge included; at 100 % the trailing-edge corners",
-        "sections: y_mm, chord_mm, twist_deg, chord_to_datum_deg, max_thickness_mm, at_pct, te_mm, section",
+        "sections: y_mm, chord_mm, twist_deg, chord_to_datum_deg, max_thickness_mm, at_pct, te_mm, "
+        "outline_extent_mm, section",
     ]
     for t in tables:
         c = t.cut
         th, at = c.thickness
         head.append(f"  {c.y:.3f}, {c.chord:.3f}, {c.twist:+.3f}, {c.pitch:+.3f}, {th:.3f}, {at:.2f}, "
-                    f"{c.te_mm:.3f}, {c.section.label}")
+                    f"{c.te_mm:.3f}, {c.extent:.3f}, {c.section.label}")
     try:
         with open(path, "w", newline="", encoding="utf-8") as f:
             for line in head:

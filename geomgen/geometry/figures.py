@@ -1,9 +1,14 @@
 """Intended figures of a surface, integrated from the spec's geometry model.
 
-Definitions (DEVELOPERS.md): the outline is projected on the datum plane normal to the lift
-direction (x-y for a horizontal surface, x-z for a vertical one). MAC = ∫c² dy / ∫c dy,
-its spanwise position ȳ = ∫c|y| dy / ∫c dy from the root, its leading edge
-x̄_LE = ∫x_LE c dy / ∫c dy (datum x) (Raymer, Aircraft Design: A Conceptual Approach §7.3).
+Definitions (README "What the figures mean"): the planform figures are taken in the surface's
+own reference plane, spanned by the root chord line and the span axis, so a mounting
+incidence does not move them; the chord at each span is the nominal chord line (the section
+family's leading edge to the trailing-edge midpoint) projected on that plane. MAC = ∫c² dy /
+∫c dy, its spanwise position ȳ = ∫c|y| dy / ∫c dy from the root, its leading edge
+x̄_LE = ∫x_LE c dy / ∫c dy (coordinate along the root chord line, equal to datum x at the root
+reference point) (Raymer, Aircraft Design: A Conceptual Approach §7.3). Beside them the
+outline's shadow on the datum plane normal to the lift direction (x-y for a horizontal
+surface, x-z for a vertical one): ``datum_area_cm2``, ``datum_mac_mm``.
 Integrals use Gauss-Legendre nodes on each station interval (exact for the cubic pieces).
 """
 
@@ -40,6 +45,8 @@ class Figures:
     volume_cm3: float
     wetted_area_cm2: float = float("nan")
     centroid_mm: tuple = (float("nan"),) * 3
+    datum_area_cm2: float = float("nan")
+    datum_mac_mm: float = float("nan")
 
     def as_dict(self) -> dict:
         return asdict(self)
@@ -56,16 +63,23 @@ def _nodes(model) -> tuple[np.ndarray, np.ndarray]:
     return np.concatenate(ys), np.concatenate(ws)
 
 
-def outline_at(model, y: float) -> tuple[float, float]:
-    """(leading-edge coordinate, projected chord) of the section at ``y``, mm, along datum x."""
+def outline_at(model, y: float) -> tuple[float, float, float, float]:
+    """At span ``y``: (leading-edge coordinate, chord) of the nominal chord line projected on
+    the reference plane, and (foremost datum x, x extent) of the outline, mm."""
+    from .slices import RefPlane, chord_lines
+
     pts = model.section_loop(y, OUTLINE_POINTS)
-    return float(pts[:, 0].min()), float(pts[:, 0].max() - pts[:, 0].min())
+    le, te = chord_lines(pts[None], model.leading_edge(y)[None])
+    plane = RefPlane(np.asarray(model.R[:, 0], float), np.asarray(model.position, float))
+    return (float(plane.along(le)[0]), float((te[0] - le[0]) @ plane.e),
+            float(pts[:, 0].min()), float(pts[:, 0].max() - pts[:, 0].min()))
 
 
 @dataclass(frozen=True)
 class PlanformFigures:
     """The planform part of :class:`Figures`: the one set of reference figures that the build,
-    the check, the balance and the report all use. Lengths mm, area cm²."""
+    the check, the balance and the report all use (in the reference plane), with the datum
+    shadow beside them. Lengths mm, area cm²."""
 
     span_mm: float
     projected_area_cm2: float
@@ -73,18 +87,21 @@ class PlanformFigures:
     mac_mm: float
     mac_y_mm: float
     mac_le_x_mm: float
+    datum_area_cm2: float = float("nan")
+    datum_mac_mm: float = float("nan")
 
 
 _PLANFORM: "weakref.WeakKeyDictionary" = weakref.WeakKeyDictionary()
 
 
 def planform_figures(model) -> PlanformFigures:
-    """Span, projected area, aspect ratio, MAC, its span position and leading-edge x of a
-    :class:`SurfaceModel`, over the whole outline (a rounded tip included), once per model."""
+    """Span, planform area, aspect ratio, MAC, its span position and leading-edge coordinate
+    of a :class:`SurfaceModel` in its reference plane, and the datum shadow's area and MAC,
+    over the whole outline (a rounded tip included), once per model."""
     f = _PLANFORM.get(model)
     if f is None:
         y, w = _nodes(model)
-        le, c = np.array([outline_at(model, v) for v in y]).T
+        le, c, _, dc = np.array([outline_at(model, v) for v in y]).T
         area_half = float(w @ c)
         k = 2.0 if model.mirror else 1.0
         span = k * (model.half_span - (0.0 if model.mirror else float(model.planform.y[0])))
@@ -92,7 +109,8 @@ def planform_figures(model) -> PlanformFigures:
         f = PlanformFigures(span_mm=span, projected_area_cm2=area / 100.0, aspect_ratio=span**2 / area,
                             mac_mm=float(w @ c**2) / area_half,
                             mac_y_mm=float(w @ (c * (y - model.planform.y[0]))) / area_half,
-                            mac_le_x_mm=float(w @ (le * c)) / area_half)
+                            mac_le_x_mm=float(w @ (le * c)) / area_half,
+                            datum_area_cm2=k * float(w @ dc) / 100.0, datum_mac_mm=float(w @ dc**2) / float(w @ dc))
         _PLANFORM[model] = f
     return f
 
@@ -105,13 +123,14 @@ def intended_figures(model) -> Figures:
     k = 2.0 if model.mirror else 1.0
     vol = k * float(w @ np.array([model.section(v).area(1000) * float(model.chord(v)) ** 2 for v in y]))
     y0, y1 = float(model.planform.y[0]), float(model.half_span)  # root to the outermost section
-    (le0, c0), (le1, c1) = outline_at(model, y0), outline_at(model, y1)
+    (le0, c0, _, _), (le1, c1, _, _) = outline_at(model, y0), outline_at(model, y1)
     sweep = math.degrees(math.atan2((le1 + c1 / 4) - (le0 + c0 / 4), y1 - y0))
     root, tip = (section_figures(model, v)["chord_mm"] for v in (y0, y1))
     return Figures(span_mm=pf.span_mm, projected_area_cm2=pf.projected_area_cm2, aspect_ratio=pf.aspect_ratio, mac_mm=mac,
                    mac_y_mm=pf.mac_y_mm, mac_le_x_mm=x_le, mac_qc_x_mm=x_le + mac / 4, root_chord_mm=root,
                    tip_chord_mm=tip, taper_ratio=tip / root, sweep_qc_deg=sweep, volume_cm3=vol / 1000.0,
-                   wetted_area_cm2=surface_area(model) / 100.0, centroid_mm=tuple(centroid(model)))
+                   wetted_area_cm2=surface_area(model) / 100.0, centroid_mm=tuple(centroid(model)),
+                   datum_area_cm2=pf.datum_area_cm2, datum_mac_mm=pf.datum_mac_mm)
 
 
 def _polygon(p2: np.ndarray) -> tuple[float, np.ndarray]:
@@ -160,14 +179,15 @@ SECTION_POINTS = 600
 
 
 def section_figures(model, y: float) -> dict:
-    """Chord, max thickness (mm, % chord) and its position (% chord) of the finished section at
-    ``y``, by the same definition the check applies to the written file's slice
-    (:func:`geomgen.geometry.slices.chord_and_thickness`: chord = the section's largest extent,
-    thickness normal to it). On a cambered section this chord exceeds the spec's nominal
-    chord slightly (NACA 23012: by about 0.07 %)."""
+    """Chord, largest extent, max thickness (mm, % chord) and its position (% chord) of the
+    finished section at ``y``, by the same definition the check applies to the written file's
+    slice (:func:`geomgen.geometry.slices.chord_and_thickness`: chord = the nominal chord
+    line, the section family's leading edge to the trailing-edge midpoint, as typed;
+    thickness normal to it; the extent beside it: on a cambered section it exceeds the
+    chord slightly, NACA 4415 by about 0.07 %)."""
     from .slices import chord_and_thickness
 
     axis = int(np.argmax(np.abs(model.span_axis)))
-    return chord_and_thickness(model.section_loop(float(y), SECTION_POINTS), axis)
+    return chord_and_thickness(model.section_loop(float(y), SECTION_POINTS), axis, model.leading_edge(y))
 
 

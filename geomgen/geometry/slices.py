@@ -28,18 +28,50 @@ class Frame:
     """Where the caller says a part lies, so the files are measured where the spec put the part
     (never what they should measure): datum span axis (1 = y, 2 = z), ``sign`` of the root-to-tip
     direction along it, span coordinate ``root`` of the root plane (the centre plane of a
-    mirrored part) and ``mirrored``. Without a frame the measurement guesses from the shape,
-    which is ambiguous (a mirrored part off the datum plane, a span shorter than the root's
-    thickness)."""
+    mirrored part), ``mirrored``, the span coordinate ``origin`` of span 0 (station positions
+    are measured from it: a first station at y = 30 lies 30 mm from it, not at it), and the
+    surface's reference plane: ``chord_dir`` (3,), the datum direction of the root chord line
+    at zero twist (datum x turned by the mounting incidence), through ``ref_point`` (3,), the
+    root reference point, and ``le_at``, where the design puts the leading edge (the section
+    family's, see :func:`chord_lines`). Without a frame the measurement guesses from the shape, which is
+    ambiguous (a mirrored part off the datum plane, a span shorter than the root's thickness)."""
 
     axis: int
     sign: float
     root: float
     mirrored: bool
+    origin: float | None = None
+    chord_dir: tuple = (1.0, 0.0, 0.0)
+    ref_point: tuple = (0.0, 0.0, 0.0)
+    le_at: object = None  # callable: datum span coordinates (n,) -> design leading edges (n, 3)
 
     def ends(self, lo: float, hi: float) -> tuple[float, float]:
         """(root, tip) span coordinates on a part measured from ``lo`` to ``hi``."""
         return self.root, (hi if self.sign > 0 else lo)
+
+    def at(self, y: float) -> float:
+        """Datum span coordinate of the station position ``y`` (mm from span 0)."""
+        o = self.root if self.origin is None else self.origin
+        return o + self.sign * float(y)
+
+    def plane(self) -> "RefPlane":
+        return RefPlane(np.asarray(self.chord_dir, float), np.asarray(self.ref_point, float))
+
+
+@dataclass
+class RefPlane:
+    """The surface's own reference plane, spanned by the root chord line and the span axis.
+    ``along(p)`` is the coordinate of datum points along the root chord line, counted so that
+    the root reference point keeps its datum x (at zero incidence it *is* datum x)."""
+
+    e: np.ndarray
+    p0: np.ndarray
+
+    def along(self, p: np.ndarray) -> np.ndarray:
+        return self.p0[0] + (np.asarray(p, float) - self.p0) @ self.e
+
+
+DATUM_PLANE = RefPlane(np.array([1.0, 0.0, 0.0]), np.zeros(3))
 
 
 def span_axis_of(bbox_min, bbox_max) -> int:
@@ -206,66 +238,136 @@ def section_diameter(points: np.ndarray) -> tuple[float, int, int]:
     return float(d[k]), int(idx[i]), int(idx[j])
 
 
-def section_frame(sl: np.ndarray, axis: int) -> tuple[float, int, np.ndarray, np.ndarray]:
-    """(chord, index of the leading edge, unit chord direction (3,), unit normal (3,)) of an
-    ordered section polyline (n, 3) (upper trailing edge -> leading edge -> lower trailing
-    edge) in a plane normal to datum ``axis``: the chord line of :func:`chord_and_thickness`,
-    the normal in the section plane (toward +z for a horizontal part with the chord along +x).
+def chord_lines(sl: np.ndarray, le_hint: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """(leading edges (ns, 3), trailing-edge midpoints (ns, 3)) of ordered section polylines
+    (ns, n, 3) (upper trailing edge -> leading edge -> lower trailing edge): the nominal chord
+    line of each, from the section family's leading edge to the trailing-edge midpoint
+    (between the polyline's two ends).
 
-    The chord *length* is the section's largest extent (a caliper's reading). The chord
-    *line* runs from the leading edge to the trailing-edge midpoint (between the polyline's
-    two ends), the leading edge being the point farthest from that midpoint, located between
-    samples by a parabola through the farthest sample and its neighbours. (Aiming the line at
+    Where the leading edge is depends on the family (NACA Report 460: the start of the mean
+    line, which on a cambered section lies behind the outline's foremost point and nearer the
+    trailing edge than the outline's farthest point; a coordinate file: its point farthest
+    from the trailing edge). ``le_hint`` (ns, 3), where the design puts it, picks it on the
+    outline: the outline point nearest the hint. Without a hint it is the point farthest from
+    the trailing-edge midpoint. Either way it is located between samples by a parabola
+    through the best sample and its neighbours. The trailing edge always comes from the
+    outline itself, so a scaled or moved section reads its own chord. (Aiming the line at
     the trailing-edge corner that happened to be farther flipped it by te/chord between two
     samplings of one section: an open 1 mm edge on a 37 mm chord moved the second moment
-    about the chord line 7 %.)
-    """
-    chord, i, j = section_diameter(sl)
-    n = len(sl)
-    te = 0.5 * (sl[0] + sl[-1])
-    d = np.linalg.norm(sl - te, axis=1)
+    about the chord line 7 %.)"""
+    sl = np.asarray(sl, float)
+    ns, n = sl.shape[:2]
+    te = 0.5 * (sl[:, 0] + sl[:, -1])
     lo, hi = max(1, n // 8), n - 1 - max(1, n // 8)  # the nose, away from the trailing edge
-    i_le = lo + int(np.argmax(d[lo:hi + 1]))
-    le = sl[i_le]
-    if 0 < i_le < n - 1:
-        d0, d1, d2 = d[i_le - 1], d[i_le], d[i_le + 1]
-        den = d0 - 2 * d1 + d2
-        f = 0.5 * (d0 - d2) / den if den < 0 else 0.0
-        f = float(np.clip(f, -0.5, 0.5))  # vertex of the parabola, in samples from i_le
-        p0, p1, p2 = sl[i_le - 1], sl[i_le], sl[i_le + 1]
-        le = p1 + 0.5 * f * (p2 - p0) + 0.5 * f * f * (p2 - 2 * p1 + p0)
+    if le_hint is None:
+        d = np.linalg.norm(sl - te[:, None, :], axis=-1)
+    else:
+        d = -np.sum((sl - np.asarray(le_hint, float)[:, None, :]) ** 2, axis=-1)
+        lo, hi = 1, n - 2
+    i = lo + np.argmax(d[:, lo:hi + 1], axis=1)
+    k = np.arange(ns)
+    d0, d1, d2 = d[k, i - 1], d[k, i], d[k, i + 1]
+    den = d0 - 2 * d1 + d2
+    f = np.where(den < 0, 0.5 * (d0 - d2) / np.where(den < 0, den, -1.0), 0.0)
+    f = np.clip(f, -0.5, 0.5)[:, None]  # vertex of the parabola, in samples from i
+    p0, p1, p2 = sl[k, i - 1], sl[k, i], sl[k, i + 1]
+    le = p1 + 0.5 * f * (p2 - p0) + 0.5 * f * f * (p2 - 2 * p1 + p0)
+    return le, te
+
+
+def chord_line_of_points(points: np.ndarray, aft: np.ndarray,
+                         le_hint: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """(leading edge (3,), trailing-edge midpoint (3,)) of an unordered planar section (a mesh
+    slice), by the definition of :func:`chord_lines`: the trailing edge is the convex-hull
+    vertex farthest along ``aft`` (3,) (roughly the chord direction), and when one of its hull
+    edges runs across the chord (within 45° of the normal) the section ends in a flat, whose
+    midpoint is taken; the leading edge is the point nearest ``le_hint`` (3,) when given (the
+    section family's leading edge, see :func:`chord_lines`), else the point farthest from
+    that midpoint. The hull's order (not the unordered points') tells which points are
+    neighbours."""
+    from scipy.spatial import ConvexHull
+
+    p = np.asarray(points, float)
+    e = np.asarray(aft, float) / np.linalg.norm(aft)
+    # an in-plane frame: e and the normal of the best-fit plane crossed with e
+    c = p - p.mean(axis=0)
+    nrm = np.linalg.svd(c, full_matrices=False)[2][-1]
+    f = np.cross(nrm, e)
+    f /= np.linalg.norm(f)
+    te = None
+    for _ in range(2):
+        q = np.column_stack([c @ e, c @ f])
+        try:
+            hv = ConvexHull(q).vertices  # counter-clockwise
+        except Exception:  # degenerate: every point on a line
+            hv = np.array([int(np.argmin(q[:, 0])), int(np.argmax(q[:, 0]))])
+        j = int(np.argmax(q[hv, 0]))
+        pa = p[hv[j]]
+        te = pa
+        best = None
+        for nb in (hv[j - 1], hv[(j + 1) % len(hv)]):
+            v = p[nb] - pa
+            lv = float(np.linalg.norm(v))
+            if lv > 0 and abs(v @ e) < math.cos(math.radians(45.0)) * lv and (best is None or lv < best[0]):
+                best = (lv, p[nb])
+        if best is not None:
+            te = 0.5 * (pa + best[1])
+        if le_hint is None:
+            le = p[int(np.argmax(np.linalg.norm(p - te, axis=1)))]
+        else:
+            le = p[int(np.argmin(np.linalg.norm(p - np.asarray(le_hint, float), axis=1)))]
+        e = (te - le) / np.linalg.norm(te - le)
+        f = np.cross(nrm, e)
+        f /= np.linalg.norm(f)
+    return le, te
+
+
+def section_frame(sl: np.ndarray, axis: int, le_hint=None) -> tuple[float, int, np.ndarray, np.ndarray]:
+    """(nominal chord, index of the leading-edge sample, unit chord direction (3,), unit normal
+    (3,)) of an ordered section polyline (n, 3) in a plane normal to datum ``axis``: the chord
+    line of :func:`chord_lines` (leading edge to trailing-edge midpoint), the normal in the
+    section plane (toward +z for a horizontal part with the chord along +x)."""
+    hint = None if le_hint is None else np.asarray(le_hint, float)[None]
+    le, te = (v[0] for v in chord_lines(np.asarray(sl, float)[None], hint))
+    i_le = int(np.argmin(np.linalg.norm(sl - le, axis=1)))
     e = te - le
-    e = e / np.linalg.norm(e)
+    chord = float(np.linalg.norm(e))
+    e = e / chord
     a, b = [k for k in range(3) if k != axis]
     nrm = np.zeros(3)
     nrm[a], nrm[b] = -e[b], e[a]
     return chord, i_le, e, nrm
 
 
-def chord_and_thickness(sl: np.ndarray, axis: int) -> dict:
-    """Chord, max thickness (mm) and its position (% chord) of an ordered section polyline (n, 3)
-    (upper trailing edge -> leading edge -> lower trailing edge).
+def chord_and_thickness(sl: np.ndarray, axis: int, le_hint=None) -> dict:
+    """Chord, largest extent, max thickness (mm) and its position (% chord) of an ordered
+    section polyline (n, 3) (upper trailing edge -> leading edge -> lower trailing edge).
 
-    This is the one definition of both figures, used for the intended section (sampled from
+    This is the one definition of these figures, used for the intended section (sampled from
     the model) and for the measured one (sliced from the written file):
 
-    * chord: the section's largest extent, the distance between its two farthest points
-      (leading edge and trailing edge, or a trailing-edge corner when the edge is finite),
-      as a caliper measures it. On a cambered section it exceeds the nominal chord a little
-      (the upper surface lies ahead of the mean line's leading edge).
+    * chord: the nominal chord, the length of the chord line from the leading edge to the
+      trailing-edge midpoint (:func:`chord_lines`): the chord the user typed.
+    * extent: the section's largest extent, the distance between its two farthest points, as
+      a caliper measures it. On a cambered section it exceeds the chord a little (the upper
+      surface lies ahead of the mean line's leading edge: NACA 4415 by 0.07 %).
     * thickness: the largest distance between upper and lower surface measured normal to
-      that chord line, at equal position along it.
+      the chord line, at equal position along it; its position in % of the chord from the
+      leading edge.
     """
-    chord, i_le, e, nrm = section_frame(sl, axis)
-    x = (sl - sl[i_le]) @ e
-    h = (sl - sl[i_le]) @ nrm
-    up_x, up_h = x[: i_le + 1][::-1], h[: i_le + 1][::-1]
-    lo_x, lo_h = x[i_le:], h[i_le:]
+    sl = np.asarray(sl, float)
+    chord, i_le, e, nrm = section_frame(sl, axis, le_hint)
+    le = chord_lines(sl[None], None if le_hint is None else np.asarray(le_hint, float)[None])[0][0]
+    x = (sl - le) @ e
+    h = (sl - le) @ nrm
+    up_x, up_h = np.append(0.0, x[: i_le + 1][::-1]), np.append(0.0, h[: i_le + 1][::-1])
+    lo_x, lo_h = np.append(0.0, x[i_le:]), np.append(0.0, h[i_le:])
+    up_o, lo_o = np.argsort(up_x, kind="stable"), np.argsort(lo_x, kind="stable")
     xs = np.linspace(0, chord, 4001)
-    t = np.abs(np.interp(xs, up_x, up_h) - np.interp(xs, lo_x, lo_h))
+    t = np.abs(np.interp(xs, up_x[up_o], up_h[up_o]) - np.interp(xs, lo_x[lo_o], lo_h[lo_o]))
     k = int(np.argmax(t))
-    return {"chord_mm": chord, "thickness_mm": float(t[k]), "thickness_pct": 100 * float(t[k]) / chord,
-            "at_pct": 100 * xs[k] / chord}
+    return {"chord_mm": chord, "extent_mm": section_diameter(sl)[0], "thickness_mm": float(t[k]),
+            "thickness_pct": 100 * float(t[k]) / chord, "at_pct": 100 * xs[k] / chord}
 
 
 def skin_volume_centroid(skin: Skin) -> tuple[float, np.ndarray]:
@@ -344,17 +446,24 @@ def skin_surface_area(skin: Skin, nodes: int = 6, span_nodes: int = 16) -> float
 # -- planform figures from slice extents -------------------------------------------------
 @dataclass
 class Outline:
-    """Span positions s (mm), leading-edge x and projected chord (mm) at each, with weights."""
+    """Span positions s (mm) with integration weights; at each, in the reference plane the
+    leading-edge coordinate ``x_le`` and chord ``c`` (the nominal chord line projected on it),
+    and on the datum plane the outline's foremost x ``dx_le`` and x extent ``dc`` (mm)."""
 
     s: np.ndarray
     w: np.ndarray
     x_le: np.ndarray
     c: np.ndarray
+    dx_le: np.ndarray | None = None
+    dc: np.ndarray | None = None
 
 
 def planform_figures(outline: Outline, span_lo: float, span_hi: float, root_chord: float, tip_chord: float,
                      root: float, tip: float, qc_root: float, qc_tip: float) -> dict:
-    """Planform figures (Raymer §7.3 definitions) from an outline over the whole span.
+    """Planform figures (Raymer §7.3 definitions) from an outline over the whole span: in the
+    reference plane (area, AR, MAC, its span position, leading-edge and quarter-chord
+    coordinate), and the outline's shadow on the datum plane (``datum_area_cm2``,
+    ``datum_mac_mm``).
 
     ``root``/``tip``: span coordinates of the root (centre of a mirrored part) and a tip.
     """
@@ -365,9 +474,13 @@ def planform_figures(outline: Outline, span_lo: float, span_hi: float, root_chor
     y_mac = float(w @ (c * np.abs(s - root))) / area
     xle = float(w @ (x_le * c)) / area
     sweep = math.degrees(math.atan2(qc_tip - qc_root, abs(tip - root)))
-    return {"span_mm": span, "projected_area_cm2": area / 100, "aspect_ratio": span**2 / area, "mac_mm": mac,
-            "mac_y_mm": y_mac, "mac_le_x_mm": xle, "mac_qc_x_mm": xle + mac / 4, "root_chord_mm": root_chord,
-            "tip_chord_mm": tip_chord, "taper_ratio": tip_chord / root_chord, "sweep_qc_deg": sweep}
+    out = {"span_mm": span, "projected_area_cm2": area / 100, "aspect_ratio": span**2 / area, "mac_mm": mac,
+           "mac_y_mm": y_mac, "mac_le_x_mm": xle, "mac_qc_x_mm": xle + mac / 4, "root_chord_mm": root_chord,
+           "tip_chord_mm": tip_chord, "taper_ratio": tip_chord / root_chord, "sweep_qc_deg": sweep}
+    if outline.dc is not None:
+        da = float(w @ outline.dc)
+        out.update(datum_area_cm2=da / 100, datum_mac_mm=float(w @ outline.dc**2) / da)
+    return out
 
 
 def root_of(s_lo: float, s_hi: float, chord_at) -> tuple[float, float, bool]:

@@ -147,13 +147,33 @@ class SurfaceModel:
     def span_frame(self) -> dict:
         """Where the part lies along its span, for measuring its files: datum ``axis`` index
         (1 = y, 2 = z), ``sign`` of the root-to-tip direction along it, datum coordinate
-        ``root`` of the root plane (the centre plane of a mirrored part), ``mirrored``.
-        Sections lie in planes of constant local Y, which incidence and twist leave alone."""
+        ``root`` of the root plane (the centre plane of a mirrored part, else the first
+        station), ``mirrored``, datum coordinate ``origin`` of span 0 (station positions count
+        from it), the reference plane (``chord_dir``: datum direction of the root chord line
+        at zero twist, i.e. datum x turned by the incidence; ``ref_point``: the root reference
+        point) and ``le_at`` (where the design puts the leading edge at datum span
+        coordinates). Sections lie in planes of constant local Y, which incidence and twist
+        leave alone."""
         d = self.span_axis
         axis = int(np.argmax(np.abs(d)))
         sign = float(np.sign(d[axis]))
         y0 = 0.0 if self.mirror else float(self.planform.y[0])
-        return {"axis": axis, "sign": sign, "root": float(self.position[axis]) + sign * y0, "mirrored": self.mirror}
+        return {"axis": axis, "sign": sign, "root": float(self.position[axis]) + sign * y0, "mirrored": self.mirror,
+                "origin": float(self.position[axis]), "chord_dir": tuple(float(v) for v in self.R[:, 0]),
+                "ref_point": tuple(float(v) for v in self.position), "le_at": self.leading_edges_at}
+
+    def leading_edge(self, y: float) -> np.ndarray:
+        """(3,) datum point of the section family's leading edge at span ``y`` (the unit-chord
+        section's (0, 0): NACA the mean line's start, a coordinate file its point farthest
+        from the trailing edge)."""
+        return self.place(float(y), np.zeros((1, 2)))[0]
+
+    def leading_edges_at(self, s) -> np.ndarray:
+        """(n, 3) leading edges (:meth:`leading_edge`) at datum span coordinates ``s`` (n,)."""
+        axis = int(np.argmax(np.abs(self.span_axis)))
+        sign = float(np.sign(self.span_axis[axis]))
+        y = (np.atleast_1d(np.asarray(s, float)) - self.position[axis]) * sign
+        return np.array([self.leading_edge(v) for v in y]).reshape(-1, 3)
 
     @property
     def lift_axis(self) -> np.ndarray:

@@ -176,6 +176,7 @@ def _fit(x: np.ndarray, y: np.ndarray, noise: float):
     t = np.sqrt(x)
     w = 1.0 / (1.0 + np.minimum(np.gradient(y, x) ** 2, 1e8))
     w[0] = 1e8  # pins the leading edge (0, 0)
+    w[-1] = 1e8  # and the trailing-edge end point (a cusp: both sides meet there)
     basis = t[:, None] ** np.arange(1, 7)
     coef = np.linalg.lstsq(basis * np.sqrt(w)[:, None], y * np.sqrt(w), rcond=None)[0]
     poly = np.polynomial.Polynomial(np.r_[0.0, coef])

@@ -71,7 +71,7 @@ class Expectation(_Strict):
 #: Figures a surface's ``expect`` table may name (definitions in DEVELOPERS.md).
 EXPECTABLE = ("span_mm", "projected_area_cm2", "aspect_ratio", "mac_mm", "mac_y_mm",
               "mac_le_x_mm", "mac_qc_x_mm", "root_chord_mm", "tip_chord_mm", "taper_ratio",
-              "sweep_qc_deg", "volume_cm3", "wetted_area_cm2", "root_area_mm2", "root_i_chord_mm4",
+              "sweep_qc_deg", "volume_cm3", "wetted_area_cm2", "datum_area_cm2", "datum_mac_mm", "root_area_mm2", "root_i_chord_mm4",
               "root_i_normal_mm4", "root_j_mm4")
 
 
@@ -92,6 +92,9 @@ class Expect(_Strict):
     sweep_qc_deg: Optional[Expectation] = None
     volume_cm3: Optional[Expectation] = None
     wetted_area_cm2: Optional[Expectation] = None
+    datum_area_cm2: Optional[Expectation] = Field(
+        None, description="area of the outline's shadow on the datum plane (x-y horizontal, x-z vertical), cm²")
+    datum_mac_mm: Optional[Expectation] = Field(None, description="MAC of the outline's shadow on the datum plane, mm")
     root_area_mm2: Optional[Expectation] = Field(None, description="cross-section area at the root station, mm²")
     root_i_chord_mm4: Optional[Expectation] = Field(
         None, description="root section's second moment about its centroidal axis parallel to the chord, mm⁴")
