@@ -18,10 +18,14 @@ settings.register_profile("long", max_examples=10_000, deadline=None,
 PROFILE = os.environ.get("GEOMGEN_FUZZ", "fast")
 
 FIVE = ["21012", "22012", "23012", "24012", "25012", "22112", "23112", "24112", "25112", "23015", "44018"]
+#: the schema's edges: strong camber far forward or aft, very thin and very thick sections
+EXTREME = ["9406", "9730", "6240", "0006", "0040", "2940", "8306", "25135"]
 
 
 @st.composite
 def naca_designation(draw):
+    if draw(st.integers(0, 5)) == 0:
+        return draw(st.sampled_from(EXTREME))
     if draw(st.booleans()):
         t = draw(st.integers(6, 21))
         if draw(st.booleans()):
@@ -36,11 +40,16 @@ def spec_params(draw, files: bool = False):
     (written by :func:`coordinate_files` beside the spec: the NACA formula's points, as a
     file of 5 or 6 decimals, 25 to 160 points a side, Selig loop or split layout)."""
     n = draw(st.integers(2, 5))
-    gaps = draw(st.lists(st.floats(5.0, 300.0), min_size=n - 1, max_size=n - 1))
-    ys = [0.0]
+    # station gaps down to the smallest the schema allows (0.5 mm), weighted toward the edges:
+    # close stations against the chord are where gull, anhedral and flared-tip wings kink
+    gap = st.one_of(st.floats(5.0, 300.0), st.floats(5.0, 300.0), st.floats(0.5, 5.0))
+    gaps = draw(st.lists(gap, min_size=n - 1, max_size=n - 1))
+    # the first station off span 0 (measured from the fuselage side) now and then
+    ys = [draw(st.sampled_from([0.0, 0.0, 0.0, round(draw(st.floats(0.5, 200.0)), 3)]))]
     for g in gaps:
         ys.append(ys[-1] + g)
-    root = draw(st.floats(40.0, 400.0))
+    root = draw(st.one_of(st.floats(40.0, 400.0), st.floats(40.0, 400.0), st.floats(2.0, 40.0),
+                          st.floats(400.0, 5000.0)))
     chords = [root] + [root * draw(st.floats(0.2, 1.2)) for _ in range(n - 1)]
     stations = []
     for i, (y, c) in enumerate(zip(ys, chords)):

@@ -102,11 +102,14 @@ def measure_stl(path, frame: Frame | None = None) -> dict:
     plane = frame.plane() if frame else DATUM_PLANE
     le_at = frame.le_at if frame is not None else None
 
+    te_at = frame.te_at if frame is not None else None
+
     def extents(s):
         s = np.clip(s, lo + eps, hi - eps)
         sl = _mesh_slices(mesh.vertices, edges, axis, s)
+        corners = te_at(s) if te_at is not None else [None] * len(s)
         hints = le_at(s) if le_at is not None else [None] * len(s)
-        lines = [chord_line_of_points(p, plane.e, h) for p, h in zip(sl, hints)]
+        lines = [chord_line_of_points(p, plane.e, h, k) for p, h, k in zip(sl, hints, corners)]
         le = np.array([v[0] for v in lines])
         te = np.array([v[1] for v in lines])
         return plane.along(le), (te - le) @ plane.e, sl, le, te

@@ -32,8 +32,9 @@ class Frame:
     are measured from it: a first station at y = 30 lies 30 mm from it, not at it), and the
     surface's reference plane: ``chord_dir`` (3,), the datum direction of the root chord line
     at zero twist (datum x turned by the mounting incidence), through ``ref_point`` (3,), the
-    root reference point, and ``le_at``, where the design puts the leading edge (the section
-    family's, see :func:`chord_lines`). Without a frame the measurement guesses from the shape, which is
+    root reference point, ``le_at``, where the design puts the leading edge (the section
+    family's, see :func:`chord_lines`), and ``te_at``, the design's trailing-edge corners
+    (which way the flat runs, for a mesh slice: :func:`chord_line_of_points`). Without a frame the measurement guesses from the shape, which is
     ambiguous (a mirrored part off the datum plane, a span shorter than the root's thickness)."""
 
     axis: int
@@ -44,6 +45,7 @@ class Frame:
     chord_dir: tuple = (1.0, 0.0, 0.0)
     ref_point: tuple = (0.0, 0.0, 0.0)
     le_at: object = None  # callable: datum span coordinates (n,) -> design leading edges (n, 3)
+    te_at: object = None  # callable: datum span coordinates (n,) -> design trailing-edge corners (n, 2, 3)
 
     def ends(self, lo: float, hi: float) -> tuple[float, float]:
         """(root, tip) span coordinates on a part measured from ``lo`` to ``hi``."""
@@ -275,27 +277,33 @@ def chord_lines(sl: np.ndarray, le_hint: np.ndarray | None = None) -> tuple[np.n
     return le, te
 
 
-def chord_line_of_points(points: np.ndarray, aft: np.ndarray,
-                         le_hint: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
+def chord_line_of_points(points: np.ndarray, aft: np.ndarray, le_hint: np.ndarray | None = None,
+                         te_corners: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
     """(leading edge (3,), trailing-edge midpoint (3,)) of an unordered planar section (a mesh
-    slice), by the definition of :func:`chord_lines`: the trailing edge is the convex-hull
-    vertex farthest along ``aft`` (3,) (roughly the chord direction), and when one of its hull
-    edges runs across the chord (within 45° of the normal) the section ends in a flat, whose
-    midpoint is taken; the leading edge is the point nearest ``le_hint`` (3,) when given (the
-    section family's leading edge, see :func:`chord_lines`), else the point farthest from
-    that midpoint. The hull's order (not the unordered points') tells which points are
-    neighbours."""
+    slice), by the definition of :func:`chord_lines`.
+
+    The trailing edge starts at the slice's own convex-hull vertex farthest along ``aft`` (3,)
+    (roughly the chord direction): one corner of the edge (or the point of a sharp edge). The
+    other corner is the slice point nearest that one moved by the design's flat,
+    ``te_corners`` (2, 3) (the design's upper and lower corner there; the flat runs from the
+    one farther aft to the other): a NACA open edge finished much thinner than its own is a
+    flat slanted nearly along the chord, which no local test on the points tells from the
+    surface. Without ``te_corners``, a hull edge at the aft vertex that runs across the
+    chord (within 45° of the normal) is taken for the flat. The trailing-edge midpoint is
+    halfway between the corners. The leading edge is the point nearest ``le_hint`` (3,) when
+    given (the section family's leading edge, see :func:`chord_lines`), else the point
+    farthest from that midpoint. Both ends are points of the slice, so a moved or scaled
+    section reads its own chord."""
     from scipy.spatial import ConvexHull
 
     p = np.asarray(points, float)
     e = np.asarray(aft, float) / np.linalg.norm(aft)
-    # an in-plane frame: e and the normal of the best-fit plane crossed with e
     c = p - p.mean(axis=0)
-    nrm = np.linalg.svd(c, full_matrices=False)[2][-1]
-    f = np.cross(nrm, e)
-    f /= np.linalg.norm(f)
+    nrm = np.linalg.svd(c, full_matrices=False)[2][-1]  # normal of the slice's plane
     te = None
     for _ in range(2):
+        f = np.cross(nrm, e)
+        f /= np.linalg.norm(f)
         q = np.column_stack([c @ e, c @ f])
         try:
             hv = ConvexHull(q).vertices  # counter-clockwise
@@ -304,21 +312,27 @@ def chord_line_of_points(points: np.ndarray, aft: np.ndarray,
         j = int(np.argmax(q[hv, 0]))
         pa = p[hv[j]]
         te = pa
-        best = None
-        for nb in (hv[j - 1], hv[(j + 1) % len(hv)]):
-            v = p[nb] - pa
-            lv = float(np.linalg.norm(v))
-            if lv > 0 and abs(v @ e) < math.cos(math.radians(45.0)) * lv and (best is None or lv < best[0]):
-                best = (lv, p[nb])
-        if best is not None:
-            te = 0.5 * (pa + best[1])
+        if te_corners is not None:
+            k = np.asarray(te_corners, float)
+            first = int(np.argmax(k @ e))
+            flat = k[1 - first] - k[first]
+            if np.linalg.norm(flat) > 0:
+                other = p[int(np.argmin(np.linalg.norm(p - (pa + flat), axis=1)))]
+                te = 0.5 * (pa + other)
+        else:
+            best = None
+            for nb in (hv[j - 1], hv[(j + 1) % len(hv)]):
+                v = p[nb] - pa
+                lv = float(np.linalg.norm(v))
+                if lv > 0 and abs(v @ e) < math.cos(math.radians(45.0)) * lv and (best is None or lv < best[0]):
+                    best = (lv, p[nb])
+            if best is not None:
+                te = 0.5 * (pa + best[1])
         if le_hint is None:
             le = p[int(np.argmax(np.linalg.norm(p - te, axis=1)))]
         else:
             le = p[int(np.argmin(np.linalg.norm(p - np.asarray(le_hint, float), axis=1)))]
         e = (te - le) / np.linalg.norm(te - le)
-        f = np.cross(nrm, e)
-        f /= np.linalg.norm(f)
     return le, te
 
 

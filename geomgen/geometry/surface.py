@@ -152,7 +152,7 @@ class SurfaceModel:
         from it), the reference plane (``chord_dir``: datum direction of the root chord line
         at zero twist, i.e. datum x turned by the incidence; ``ref_point``: the root reference
         point) and ``le_at`` (where the design puts the leading edge at datum span
-        coordinates). Sections lie in planes of constant local Y, which incidence and twist
+        coordinates) and ``te_at`` (its trailing-edge corners). Sections lie in planes of constant local Y, which incidence and twist
         leave alone."""
         d = self.span_axis
         axis = int(np.argmax(np.abs(d)))
@@ -160,13 +160,29 @@ class SurfaceModel:
         y0 = 0.0 if self.mirror else float(self.planform.y[0])
         return {"axis": axis, "sign": sign, "root": float(self.position[axis]) + sign * y0, "mirrored": self.mirror,
                 "origin": float(self.position[axis]), "chord_dir": tuple(float(v) for v in self.R[:, 0]),
-                "ref_point": tuple(float(v) for v in self.position), "le_at": self.leading_edges_at}
+                "ref_point": tuple(float(v) for v in self.position), "le_at": self.leading_edges_at,
+                "te_at": self.trailing_edge_corners_at}
 
     def leading_edge(self, y: float) -> np.ndarray:
         """(3,) datum point of the section family's leading edge at span ``y`` (the unit-chord
         section's (0, 0): NACA the mean line's start, a coordinate file its point farthest
         from the trailing edge)."""
         return self.place(float(y), np.zeros((1, 2)))[0]
+
+    def trailing_edge_corners_at(self, s) -> np.ndarray:
+        """(n, 2, 3) the finished section's trailing-edge corners (upper end, lower end) at
+        datum span coordinates ``s`` (n,): one point twice on a sharp edge."""
+        axis = int(np.argmax(np.abs(self.span_axis)))
+        sign = float(np.sign(self.span_axis[axis]))
+        y = (np.atleast_1d(np.asarray(s, float)) - self.position[axis]) * sign
+        one = np.array([1.0])
+        out = []
+        for v in y:
+            sec = self.section(float(v))
+            (xu,), (yu,) = sec.upper(one)
+            (xl,), (yl,) = sec.lower(one)
+            out.append(self.place(float(v), np.array([[xu, yu], [xl, yl]])))
+        return np.array(out).reshape(-1, 2, 3)
 
     def leading_edges_at(self, s) -> np.ndarray:
         """(n, 3) leading edges (:meth:`leading_edge`) at datum span coordinates ``s`` (n,)."""
