@@ -123,3 +123,16 @@ def test_fin_with_dihedral_panels_changing_direction(tmp_path, write_spec):
     text = text.replace('role = "wing"', 'role = "fin"')
     res = check(write_spec(text), tmp_path / "o", write_record=False)
     assert not res.faults, [(r.figure, r.intended, r.step, r.stl) for r in res.faults]
+
+
+@pytest.mark.parametrize("chord,mirror", [(500.0, False), (5000.0, True)])
+def test_very_short_parts_are_measured_right(tmp_path, write_spec, chord, mirror):
+    """Spans at the smallest station gap (0.6 mm) against 500 and 5,000 mm chords (the schema's
+    largest): measured right, not 65 mm of chord off. At 5,000 mm a NACA 2412's own open edge
+    (12.6 mm) finished to 0.3 mm is a flat slanted nearly along the chord (0.84 mm of x over
+    0.3 mm of height): the STL's chord line must still end at the flat's midpoint."""
+    text = wing_spec(mirror=mirror, te=0.3, section='naca = "2412"',
+                     stations=[dict(y=0, chord=chord), dict(y=0.6, chord=chord)])
+    res = check(write_spec(text), tmp_path / "o", write_record=False)
+    assert not res.faults, [(r.figure, r.intended, r.step, r.stl) for r in res.faults]
+    assert rec(res, "w", "root_chord_mm").stl == pytest.approx(chord, abs=0.06)
