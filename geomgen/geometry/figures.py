@@ -66,13 +66,13 @@ def _nodes(model) -> tuple[np.ndarray, np.ndarray]:
 def outline_at(model, y: float) -> tuple[float, float, float, float]:
     """At span ``y``: (leading-edge coordinate, chord) of the nominal chord line projected on
     the reference plane, and (foremost datum x, x extent) of the outline, mm."""
-    from .slices import RefPlane, chord_lines
+    from .slices import RefPlane, chord_lines, datum_extent
 
     pts = model.section_loop(y, OUTLINE_POINTS)
     le, te = chord_lines(pts[None], model.leading_edge(y)[None])
     plane = RefPlane(np.asarray(model.R[:, 0], float), np.asarray(model.position, float))
-    return (float(plane.along(le)[0]), float((te[0] - le[0]) @ plane.e),
-            float(pts[:, 0].min()), float(pts[:, 0].max() - pts[:, 0].min()))
+    (x0,), (dc,) = datum_extent(pts[None])
+    return float(plane.along(le)[0]), float((te[0] - le[0]) @ plane.e), float(x0), float(dc)
 
 
 @dataclass(frozen=True)

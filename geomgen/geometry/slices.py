@@ -277,6 +277,22 @@ def chord_lines(sl: np.ndarray, le_hint: np.ndarray | None = None) -> tuple[np.n
     return le, te
 
 
+def datum_extent(sl: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(foremost datum x (ns,), x extent (ns,)) of ordered section polylines (ns, n, 3): the
+    foremost point located between samples by a parabola through the foremost sample and its
+    neighbours (the samples alone cut the nose: 0.15 mm of a 1,600 mm chord's shadow); the
+    aftmost is a trailing-edge corner, a sample."""
+    x = np.asarray(sl, float)[:, :, 0]
+    ns, n = x.shape
+    i = np.clip(np.argmin(x, axis=1), 1, n - 2)
+    k = np.arange(ns)
+    x0, x1, x2 = x[k, i - 1], x[k, i], x[k, i + 1]
+    den = x0 - 2 * x1 + x2
+    lo = np.where(den > 0, x1 - (x2 - x0) ** 2 / (8 * np.where(den > 0, den, 1.0)), x1)
+    lo = np.minimum(lo, x.min(axis=1))
+    return lo, x.max(axis=1) - lo
+
+
 def chord_line_of_points(points: np.ndarray, aft: np.ndarray, le_hint: np.ndarray | None = None,
                          te_corners: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
     """(leading edge (3,), trailing-edge midpoint (3,)) of an unordered planar section (a mesh
