@@ -136,3 +136,26 @@ def test_very_short_parts_are_measured_right(tmp_path, write_spec, chord, mirror
     res = check(write_spec(text), tmp_path / "o", write_record=False)
     assert not res.faults, [(r.figure, r.intended, r.step, r.stl) for r in res.faults]
     assert rec(res, "w", "root_chord_mm").stl == pytest.approx(chord, abs=0.06)
+
+
+def test_a_part_mostly_end_caps_holds_its_stl_wetted_area(tmp_path, write_spec):
+    """40 mm to 8 mm of chord over 0.5 mm of span (NACA 9406, sharp edge; found by the long
+    command-line run): the caps are most of the surface, and their polygons' error (at most
+    the chordal tolerance times the perimeter) belongs in the STL's allowance."""
+    text = wing_spec(mirror=False, te=0.0, reference=0.0, section='naca = "9406"',
+                     stations=[dict(y=0, chord=40), dict(y=0.5, chord=8)])
+    res = check(write_spec(text), tmp_path / "o", write_record=False)
+    assert not res.faults, [(r.figure, r.intended, r.step, r.stl, r.tol_stl) for r in res.faults]
+
+
+def test_an_abrupt_taper_reads_its_end_chords_in_the_stl(tmp_path, write_spec):
+    """A mast whose chord falls from 2,000 to 400 mm over 0.5 mm (found by the long run): the
+    STL's end chord is read in the end plane itself, not 1e-6 of the span inside it (0.43 mm
+    short)."""
+    text = wing_spec(mirror=False, te=0.0, reference=0.0, orientation="vertical-up", section='naca = "25012"',
+                     stations=[dict(y=0, chord=2000), dict(y=0.5, chord=400, twist=-0.1),
+                               dict(y=132.757, chord=400, sweep=-4.4, twist=-1.3)]).replace(
+        'role = "wing"', 'role = "mast"')
+    res = check(write_spec(text), tmp_path / "o", write_record=False)
+    assert not res.faults, [(r.figure, r.intended, r.step, r.stl, r.tol_stl) for r in res.faults]
+    assert rec(res, "w", "root_chord_mm").stl == pytest.approx(2000.0, abs=0.1)

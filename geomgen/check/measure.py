@@ -97,7 +97,10 @@ def measure_stl(path, frame: Frame | None = None) -> dict:
     axis = frame.axis if frame else span_axis_of(lo_b, hi_b)
     lo, hi = float(lo_b[axis]), float(hi_b[axis])
     edges = mesh.edges_unique
-    eps = 1e-6 * (hi - lo)
+    # the end planes are sliced exactly (through the end rows of vertices: the cap's own edges
+    # lie in the plane and are skipped); an end nudged inward by 1e-6 of the span read a chord
+    # tapering 1,600 mm over 0.5 mm of span 0.43 mm short
+    eps = 0.0
 
     plane = frame.plane() if frame else DATUM_PLANE
     le_at = frame.le_at if frame is not None else None
