@@ -159,3 +159,14 @@ def test_an_abrupt_taper_reads_its_end_chords_in_the_stl(tmp_path, write_spec):
     res = check(write_spec(text), tmp_path / "o", write_record=False)
     assert not res.faults, [(r.figure, r.intended, r.step, r.stl, r.tol_stl) for r in res.faults]
     assert rec(res, "w", "root_chord_mm").stl == pytest.approx(2000.0, abs=0.1)
+
+
+def test_a_root_chord_falling_fast_is_read_in_the_root_plane(tmp_path, write_spec):
+    """Chord 3,059 -> 2,299 mm over the first 2.08 mm of a part with a 1,735 mm rounded tip
+    (found by the long run): the root slice 1e-7 of the 1,950 mm span inside the root plane
+    read the chord 0.07 mm short; the end planes are sliced exactly."""
+    text = wing_spec(mirror=False, te=0.5, section='naca = "6606"', extra='tip = "round"',
+                     stations=[dict(y=0, chord=3059.052), dict(y=2.077, chord=2299.195),
+                               dict(y=3.098, chord=1847.598), dict(y=236.626, chord=3469.755)])
+    res = check(write_spec(text), tmp_path / "o", write_record=False)
+    assert rec(res, "w", "chord@0").step == pytest.approx(3059.052, abs=5e-3)
