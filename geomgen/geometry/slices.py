@@ -301,8 +301,8 @@ def chord_line_of_points(points: np.ndarray, aft: np.ndarray, le_hint: np.ndarra
     The trailing edge starts at the slice's own convex-hull vertex farthest along ``aft`` (3,)
     (roughly the chord direction): one corner of the edge (or the point of a sharp edge). The
     other corner is the slice point nearest that one moved by the design's flat,
-    ``te_corners`` (2, 3) (the design's upper and lower corner there; the flat runs from the
-    one farther aft to the other): a NACA open edge finished much thinner than its own is a
+    ``te_corners`` (2, 3) (the design's upper and lower corner there), taken the way round
+    that lands on the slice: a NACA open edge finished much thinner than its own is a
     flat slanted nearly along the chord, which no local test on the points tells from the
     surface. Without ``te_corners``, a hull edge at the aft vertex that runs across the
     chord (within 45° of the normal) is taken for the flat. The trailing-edge midpoint is
@@ -330,11 +330,17 @@ def chord_line_of_points(points: np.ndarray, aft: np.ndarray, le_hint: np.ndarra
         te = pa
         if te_corners is not None:
             k = np.asarray(te_corners, float)
-            first = int(np.argmax(k @ e))
-            flat = k[1 - first] - k[first]
+            flat = k[1] - k[0]
             if np.linalg.norm(flat) > 0:
-                other = p[int(np.argmin(np.linalg.norm(p - (pa + flat), axis=1)))]
-                te = 0.5 * (pa + other)
+                # pa is one corner: the one from which the design's flat lands on the slice (a
+                # flat square to the chord leaves both corners equally far aft)
+                best = None
+                for f_ in (flat, -flat):
+                    dist = np.linalg.norm(p - (pa + f_), axis=1)
+                    i = int(np.argmin(dist))
+                    if best is None or dist[i] < best[0]:
+                        best = (dist[i], p[i])
+                te = 0.5 * (pa + best[1])
         else:
             best = None
             for nb in (hv[j - 1], hv[(j + 1) % len(hv)]):
