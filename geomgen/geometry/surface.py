@@ -151,9 +151,9 @@ class SurfaceModel:
         station), ``mirrored``, datum coordinate ``origin`` of span 0 (station positions count
         from it), the reference plane (``chord_dir``: datum direction of the root chord line
         at zero twist, i.e. datum x turned by the incidence; ``ref_point``: the root reference
-        point) and ``le_at`` (where the design puts the leading edge at datum span
-        coordinates) and ``te_at`` (its trailing-edge corners). Sections lie in planes of constant local Y, which incidence and twist
-        leave alone."""
+        point), ``le_at`` (where the design puts the leading edge at datum span coordinates)
+        and ``te_at`` (its trailing-edge corners). Sections lie in planes of constant local
+        Y, which incidence and twist leave alone."""
         d = self.span_axis
         axis = int(np.argmax(np.abs(d)))
         sign = float(np.sign(d[axis]))
@@ -292,7 +292,8 @@ class SurfaceModel:
             y[-1] = self.half_span
             fine = np.linspace(0.0, self._theta_max, 16 * n)
             yf = last + L * np.sin(fine)
-            err = np.abs(make_interp_spline(y, c0 * np.cos(th), k=3)(np.clip(yf, y[0], y[-1])) - c0 * np.cos(fine)).max()
+            cubic = make_interp_spline(y, c0 * np.cos(th), k=3)
+            err = np.abs(cubic(np.clip(yf, y[0], y[-1])) - c0 * np.cos(fine)).max()
             if err <= defaults.LOFT_TIP_TOL_MM or n >= defaults.LOFT_TIP_SECTIONS_MAX:
                 return y
             n = min(int(math.ceil(1.25 * n)), defaults.LOFT_TIP_SECTIONS_MAX)
