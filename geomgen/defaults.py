@@ -5,6 +5,14 @@
 #: through the leading edge, so cubic interpolation at this count is far below 1 µm
 #: on a 200 mm chord (tested in tests/test_loft.py).
 LOFT_POINTS_PER_SIDE = 80
+#: How far the chordwise cubic through a loft section's points may stray from the section
+#: midway between them, mm, at the part's largest chord; more points a side until it does
+#: not (SurfaceModel.loft_points_per_side). A NACA 4-digit mean line jumps in curvature at its
+#: camber position, where the cubic converges only as the square of the spacing: a 2412
+#: keeps 80 points up to about 1,000 mm of chord and takes about 200 at 4,716 mm, a 9730 at
+#: 200 mm about 160; the demo keeps 80 everywhere.
+LOFT_CHORDWISE_TOL_MM = 0.02
+LOFT_POINTS_PER_SIDE_MAX = 640
 
 #: Loft sections per half span (or per station interval, whichever gives more),
 #: spaced densely toward the tip. Between loft sections the skin is a cubic B-spline.
@@ -18,6 +26,16 @@ LOFT_SECTIONS_PER_INTERVAL_MIN = 5
 #: stays within this of the ellipse (8 sections, the old fixed count, strayed 0.8 mm on a
 #: 120 mm tip chord and 17 mm on a 1,900 mm one, between the last two).
 LOFT_TIP_TOL_MM = 0.005
+#: How far the skin's spanwise cubic through the loft sections may stray from the model's
+#: section midway between two of them, mm (checked on loops of LOFT_FOLLOW_POINTS_PER_SIDE
+#: points a side); a section is added there until it does not. The demo needs none added.
+LOFT_FOLLOW_TOL_MM = 0.005
+LOFT_FOLLOW_POINTS_PER_SIDE = 40
+#: Loft sections closer than twice this are not split further, mm.
+LOFT_FOLLOW_MIN_GAP_MM = 0.05
+#: Most loft sections one crease-free segment gets.
+LOFT_SECTIONS_MAX_PER_SEGMENT = 400
+
 #: Most loft sections a rounded tip gets (a 5,000 mm tip chord needs about 200).
 LOFT_TIP_SECTIONS_MAX = 400
 

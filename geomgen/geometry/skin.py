@@ -79,8 +79,10 @@ class Skin:
         return float(wu @ np.linalg.norm(np.cross(su, sv), axis=-1) @ wv)
 
 
-def build_skin(model, n_side: int = defaults.LOFT_POINTS_PER_SIDE) -> Skin:
-    """Skin through the loft sections of ``model`` (a SurfaceModel)."""
+def build_skin(model, n_side: int | None = None) -> Skin:
+    """Skin through the loft sections of ``model`` (a SurfaceModel), each sampled at
+    ``n_side`` points a side (default: the model's ``loft_points_per_side``)."""
+    n_side = model.loft_points_per_side if n_side is None else n_side
     u = Section.loop_parameter(n_side)
     pole_blocks, knot_blocks = [], []
     tu = None
