@@ -37,7 +37,8 @@ def write_step(parts, path: Path, options: dict) -> None:
 
     doc = TDocStd_Document(TCollection_ExtendedString("geomgen"))
     tool = XCAFDoc_DocumentTool.ShapeTool_s(doc.Main())
-    name = lambda label, text: TDataStd_Name.Set_s(label, TCollection_ExtendedString(text))
+    def name(label, text):
+        return TDataStd_Name.Set_s(label, TCollection_ExtendedString(text))
     if len(parts) == 1:
         name(tool.AddShape(parts[0].solid, False), parts[0].name)
     else:

@@ -122,7 +122,8 @@ def _collapse_short_edges(V, F, eps: float):
         shared = vf[a] & vf[b]
         if len(shared) != 2:
             continue
-        ring = lambda v: {int(x) for i in vf[v] for x in F[i]} - {v}
+        def ring(v):
+            return {int(x) for i in vf[v] for x in F[i]} - {v}
         opposite = {int(x) for i in shared for x in F[i]} - {a, b}
         if ring(a) & ring(b) != opposite:
             continue

@@ -58,8 +58,9 @@ def panel_gcode(p, shop, *, spec_name: str, side: str) -> tuple[str, dict]:
              f"( the wire at a block face, machine units = surface-frame point + [{shift[0]:.3f}, {shift[1]:.3f}] )",
              f"( straight cut vs the surface halfway: {p.mid_deviation:.3f} mm, tolerance {shop.cut_tol_mm:g} mm )"]
     if info["flagged"]:
-        lines.append(f"( WARNING: this panel's straight cut strays {p.mid_deviation:.2f} mm from the surface, more than "
-                     f"{shop.cut_tol_mm:g} mm: add a cut position at y = {0.5 * (p.y_a + p.y_b):g} in hotwire_cuts )")
+        lines.append(f"( WARNING: this panel's straight cut strays {p.mid_deviation:.2f} mm from the surface, "
+                     f"more than {shop.cut_tol_mm:g} mm: add a cut position at y = {0.5 * (p.y_a + p.y_b):g} "
+                     "in hotwire_cuts )")
     lines = [ln if ln.count("(") == 1 else "( " + ln[2:-2].replace("(", "[").replace(")", "]") + " )" for ln in lines]
     lines += ["G21 (mm)", "G90 (absolute)", f"G0 X{xy[0, 0]:.3f} Y{xy[0, 1]:.3f} U{uv[0, 0]:.3f} V{uv[0, 1]:.3f}",
               f"G1 F{shop.feed_mm_min:g}"]

@@ -34,8 +34,9 @@ class Frame:
     at zero twist (datum x turned by the mounting incidence), through ``ref_point`` (3,), the
     root reference point, ``le_at``, where the design puts the leading edge (the section
     family's, see :func:`chord_lines`), and ``te_at``, the design's trailing-edge corners
-    (which way the flat runs, for a mesh slice: :func:`chord_line_of_points`). Without a frame the measurement guesses from the shape, which is
-    ambiguous (a mirrored part off the datum plane, a span shorter than the root's thickness)."""
+    (which way the flat runs, for a mesh slice: :func:`chord_line_of_points`). Without a frame
+    the measurement guesses from the shape, which is ambiguous (a mirrored part off the datum
+    plane, a span shorter than the root's thickness)."""
 
     axis: int
     sign: float

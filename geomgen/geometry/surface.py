@@ -152,8 +152,8 @@ class SurfaceModel:
         from it), the reference plane (``chord_dir``: datum direction of the root chord line
         at zero twist, i.e. datum x turned by the incidence; ``ref_point``: the root reference
         point) and ``le_at`` (where the design puts the leading edge at datum span
-        coordinates) and ``te_at`` (its trailing-edge corners). Sections lie in planes of constant local Y, which incidence and twist
-        leave alone."""
+        coordinates) and ``te_at`` (its trailing-edge corners). Sections lie in planes of
+        constant local Y, which incidence and twist leave alone."""
         d = self.span_axis
         axis = int(np.argmax(np.abs(d)))
         sign = float(np.sign(d[axis]))

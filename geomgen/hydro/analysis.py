@@ -237,7 +237,8 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
         panels=dict(span_panels_per_half=ns, chord_panels=nc, total=lat.n,
                     surfaces=[m.name for m in pitch_models]),
         alpha_ref_deg=alpha_deg, cl=lift / qs, lift_slope_per_rad=dl / qs, lift_slope_per_deg=dl / qs * DEG,
-        zero_lift_attitude_deg=math.degrees(solve_attitude(lambda al: float(flow.loads(al, ctx.ref)["lift"].sum()), 0.0)),
+        zero_lift_attitude_deg=math.degrees(
+            solve_attitude(lambda al: float(flow.loads(al, ctx.ref)["lift"].sum()), 0.0)),
         cm=float(ld["moment"][:, 1].sum()) / (qs * c), cm_alpha_per_rad=dm / (qs * c),
         cm_alpha_per_deg=dm / (qs * c) * DEG, neutral_point_x_mm=x_np,
         neutral_point_from_mast_mm=x_np - ctx.mast_x if ctx.mast_x is not None else None,

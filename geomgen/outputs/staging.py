@@ -309,6 +309,7 @@ def format_index(entries: list[dict]) -> str:
         for e in rows:
             stale = " (STALE: edited, does not match the spec)" if e.get("stale") else ""
             lines.append(f"| `{e['name']}` | {e.get('purpose', '') or '-'}{stale} | "
-                         f"`geomgen {e.get('command', '?')}` | {e.get('spec', '?')} ({str(e.get('spec_sha256', ''))[:12]}) |")
+                         f"`geomgen {e.get('command', '?')}` | {e.get('spec', '?')} "
+                         f"({str(e.get('spec_sha256', ''))[:12]}) |")
         lines.append("")
     return "\n".join(lines)

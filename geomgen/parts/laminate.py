@@ -161,6 +161,7 @@ def _hole_tools(holes, B, t, block, half) -> list:
     """Through holes along machine Z (datum tools), each with a probe in this half's flange."""
     x0, y0, z0, x1, y1, z1 = block
     zp = z1 - 1.0 if half == "upper" else z0 + 1.0
-    to_datum = lambda p: B.T @ (np.asarray(p, float) - t)
+    def to_datum(p):
+        return B.T @ (np.asarray(p, float) - t)
     return [Tool("cylinder", to_datum([x, y, z0 - 1.0]), B[2], z1 - z0 + 2.0, radius=0.5 * d,
                  label=f"mould {kind} hole at {x:.0f}, {y:.0f}", probe=to_datum([x, y, zp])) for x, y, d, kind in holes]

@@ -111,7 +111,8 @@ def _fit(w, usable):
 def choose(v, f, usable, fallbacks=(), normals=((0, 1, 0), (0, -1, 0))) -> Pose:
     """The pose of the mesh (printed mm) for a usable volume [x, y, z] (None: no limit).
 
-    ``normals``: outward directions of the design's flat faces. Flat faces first: one that fits, then one needing no support, then the largest contact;
+    ``normals``: outward directions of the design's flat faces. Flat faces first: one that fits,
+    then one needing no support, then the largest contact;
     ``fallbacks``: rotations tried when no flat face gives a pose that fits."""
     cands = []
     for nrm, area in flat_faces(v, f, normals):

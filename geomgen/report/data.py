@@ -57,7 +57,8 @@ def _span_samples(model) -> np.ndarray:
     lo, hi = model.y_range
     t = 0.5 * (1.0 - np.cos(np.linspace(0.0, math.pi, SPAN_SAMPLES)))
     ys = set((lo + (hi - lo) * t).tolist())
-    ys |= {float(v) for v in model.station_breaks} | ({-float(v) for v in model.station_breaks} if model.mirror else set())
+    ys |= ({float(v) for v in model.station_breaks}
+           | ({-float(v) for v in model.station_breaks} if model.mirror else set()))
     return np.array(sorted(v for v in ys if lo - 1e-9 <= v <= hi + 1e-9))
 
 

@@ -192,4 +192,5 @@ class Section:
             return f
 
         dev = max(d for d in (self.fit_deviation, other.fit_deviation, 0.0) if d is not None)
-        return Section(mix(a_up, b_up), mix(a_lo, b_lo), f"{self.label} blended {w:.0%} toward {other.label}", dev or None)
+        return Section(mix(a_up, b_up), mix(a_lo, b_lo), f"{self.label} blended {w:.0%} toward {other.label}",
+                       dev or None)

@@ -83,7 +83,8 @@ def _describe(err: dict, data) -> str:
     if kind == "missing":
         return f"{_path(loc, data)}: required field missing"
     msg = err["msg"].removeprefix("Value error, ")
-    if "input" in err and kind not in ("value_error", "model_type", "dict_type") and not isinstance(err["input"], (dict, list)):
+    if ("input" in err and kind not in ("value_error", "model_type", "dict_type")
+            and not isinstance(err["input"], (dict, list))):
         msg += f", got {err['input']!r}"
     return f"{_path(loc, data)}: {msg}"
 
@@ -146,7 +147,8 @@ def _station_order(data, i, stations, mirror) -> list[str]:
     """Stations strictly increasing in span, not nearly coincident, root at 0 when mirrored."""
     out = []
     ys = [st.get("y") if isinstance(st, dict) else None for st in stations]
-    at = lambda j, key: _path(("surface", i, "station", j, key), data)
+    def at(j, key):
+        return _path(("surface", i, "station", j, key), data)
     for j in range(1, len(ys)):
         a, b = ys[j - 1], ys[j]
         if not all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in (a, b)):

@@ -80,8 +80,9 @@ def format_loads(res: dict) -> str:
                 "(+ leading edge up)"]
     for m in res["masts"]:
         out += ["", f'mast "{m["name"]}" (clamped at the board, {m["length_mm"]:.0f} mm to the fuselage):',
-                f"  per {m['side_force_n']:g} N side force at the fuselage: deflection {m['tip_deflection_mm']:.1f} mm, "
-                f"root moment {m['root_moment_nm']:.1f} N·m, bending stress {m['max_stress_mpa']:.1f} MPa at "
+                f"  per {m['side_force_n']:g} N side force at the fuselage: "
+                f"deflection {m['tip_deflection_mm']:.1f} mm, root moment {m['root_moment_nm']:.1f} N·m, "
+                f"bending stress {m['max_stress_mpa']:.1f} MPa at "
                 f"{m['max_stress_at_mm']:.0f} mm" + _margin(m),
                 f"  torsional stiffness {m['torsional_stiffness_nm_per_deg']:.2f} N·m per degree "
                 f"({m['twist_per_nm_deg']:.3f}° per N·m)"]

@@ -67,7 +67,8 @@ def to_csv(t: Table) -> str:
 
 
 def to_json(t: Table) -> dict:
-    clean = lambda v: None if isinstance(v, float) and not math.isfinite(v) else v
+    def clean(v):
+        return None if isinstance(v, float) and not math.isfinite(v) else v
     return {"kind": t.kind, "title": t.title, "inputs": t.inputs, "labels": t.labels, "notes": t.notes,
             "figures": {k: {"label": h, "unit": u} for k, (h, u) in FIGURES.items()},
             "rows": [{k: clean(v) for k, v in r.items()} for r in t.rows], "caution": CAUTION_STUDY}
@@ -134,7 +135,8 @@ def study_outputs(project, t: Table, pairs=(), specs: dict | None = None) -> lis
 
     from ..outputs import Output, output_name
 
-    name = lambda *w, suffix: output_name(project.name, t.kind, *w, suffix=suffix, folder="studies")
+    def name(*w, suffix):
+        return output_name(project.name, t.kind, *w, suffix=suffix, folder="studies")
     outs = [Output(name(suffix=".txt"), "text", to_text(t), f"the {t.kind} table as text"),
             Output(name(suffix=".csv"), "text", to_csv(t), f"the {t.kind} table, one row per variant (CSV)"),
             Output(name(suffix=".json"), "json", to_json(t), f"the {t.kind} table as JSON")]
