@@ -165,7 +165,10 @@ def _register() -> None:
     from ..outputs import register_format
 
     for fmt in EXPORTERS:  # looked up at write time, so the table stays the one place to change
-        register_format(fmt, lambda payload, path, fmt=fmt: EXPORTERS[fmt][1](payload[0], path, payload[1]))
+        def write(payload, path, fmt=fmt):
+            return EXPORTERS[fmt][1](payload[0], path, payload[1])
+
+        register_format(fmt, write)
 
 
 _register()

@@ -182,7 +182,7 @@ def _cut_steps(shape, v0, tools, what, probes, each: bool):
     for label, group in features_of(tools):
         pts = [p for t in group for p in (probes(t) if probes else ([t.probe] if t.probe is not None else []))]
         pts = [p for p in pts if state(cur, p) == "in"]
-        err = None
+        err: GeometryError | None = None
         for turn in SEAM_TURNS:
             try:
                 tool = fuse([make_tool(t, turn) for t in group], f"{what}: {label}")
@@ -200,6 +200,7 @@ def _cut_steps(shape, v0, tools, what, probes, each: bool):
             except GeometryError as exc:
                 err, res = exc, None
         if res is None:
+            assert err is not None  # every seam turn failed
             raise err
         cur, v_cur, removed = res, v_res, removed + rem
     return cur, removed, v_cur

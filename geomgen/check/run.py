@@ -63,7 +63,7 @@ def check(project, out_dir=None, *, rebuild: bool = False, stl_tol: float | None
     report in the same run does not measure again. Raises SpecError / GeometryError /
     CheckFailed (a file that cannot be read back); returns the result whatever the verdicts
     (see :attr:`CheckResult.ok`)."""
-    opts = {"allow_outside_files": allow_outside_files}
+    opts: dict[str, object] = {"allow_outside_files": allow_outside_files}
     if stl_tol is not None:
         opts["stl_tol"] = stl_tol
     project = Project.of(project, out_dir, **opts)

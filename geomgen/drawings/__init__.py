@@ -34,7 +34,7 @@ class SurfaceSummary:
     panels: int
     kerf_mm: float
     worst_ruled_mm: float  # largest mid-panel deviation of a ruled hot-wire cut, mm
-    warnings: list = None  # panels whose straight cut strays beyond cut_tol_mm
+    warnings: list | None = None  # panels whose straight cut strays beyond cut_tol_mm
 
 
 class ShopFiles(list):

@@ -80,6 +80,7 @@ def layout(cuts: list[Cut], side: str, height: float, paper: str, overlap: float
             ny = 1 if h <= uh else math.ceil((h - overlap) / (uh - overlap))
             if best is None or nx * ny < best[0]:
                 best = (nx * ny, orient, nx, ny, uw, uh, W)
+        assert best is not None  # two orientations tried
         _, orient, nx, ny, uw, uh, W = best
         sx = (w - overlap) / nx + overlap if nx > 1 else w  # tiles share the template evenly
         sy = (h - overlap) / ny + overlap if ny > 1 else h

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Callable, Optional
 
 import numpy as np
 
@@ -45,8 +46,10 @@ class Frame:
     origin: float | None = None
     chord_dir: tuple = (1.0, 0.0, 0.0)
     ref_point: tuple = (0.0, 0.0, 0.0)
-    le_at: object = None  # callable: datum span coordinates (n,) -> design leading edges (n, 3)
-    te_at: object = None  # callable: datum span coordinates (n,) -> design trailing-edge corners (n, 2, 3)
+    #: datum span coordinates (n,) -> design leading edges (n, 3)
+    le_at: Optional[Callable[[np.ndarray], np.ndarray]] = None
+    #: datum span coordinates (n,) -> design trailing-edge corners (n, 2, 3)
+    te_at: Optional[Callable[[np.ndarray], np.ndarray]] = None
 
     def ends(self, lo: float, hi: float) -> tuple[float, float]:
         """(root, tip) span coordinates on a part measured from ``lo`` to ``hi``."""
@@ -301,7 +304,6 @@ def chord_line_of_points(points: np.ndarray, aft: np.ndarray, le_hint: np.ndarra
     e = np.asarray(aft, float) / np.linalg.norm(aft)
     c = p - p.mean(axis=0)
     nrm = np.linalg.svd(c, full_matrices=False)[2][-1]  # normal of the slice's plane
-    te = None
     for _ in range(2):
         f = np.cross(nrm, e)
         f /= np.linalg.norm(f)

@@ -292,6 +292,7 @@ def _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc):
         return trim_point(flow, ctx, v, fl.mass_kg, w)
 
     def lift_of(d):
+        assert stab is not None  # called only with a stabilizer
         if d == 0.0:
             return trim_at(cruise).lift_n.get(stab.name, math.nan)
         changed = [m.with_incidence(m.spec.incidence + d) if m is stab else m for m in pitch_models]

@@ -138,7 +138,8 @@ def cavitation(flow, ctx, all_models, water, water_z, mass_kg: float, v_start_ms
     out = []
     for s in range(n_surf):
         sel = surf_of == s
-        prev, found = None, None
+        prev: float | None = None
+        found: tuple[float | None, float] | None = None
         for v, st in states:
             if st is None:
                 continue

@@ -10,6 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 
 @dataclass
@@ -23,15 +24,15 @@ class Tool:
     """
 
     kind: str
-    origin: np.ndarray
-    axis: np.ndarray
+    origin: ArrayLike  # points and directions: stored as float arrays
+    axis: ArrayLike
     length: float
     radius: float = 0.0
     radius2: float = 0.0
-    xdir: np.ndarray | None = None
+    xdir: ArrayLike | None = None
     size: tuple[float, float] = (0.0, 0.0)
     label: str = ""
-    probe: np.ndarray | None = None  # a point inside the part that this tool must remove (a check)
+    probe: ArrayLike | None = None  # a point inside the part that this tool must remove (a check)
 
     def __post_init__(self):
         self.origin = np.asarray(self.origin, float)
