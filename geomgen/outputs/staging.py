@@ -119,6 +119,7 @@ class Staging:
             raise ExportError(f"two outputs want the same name '{name}'")
         self.names.append(name)
         self.purposes[name] = purpose
+        assert self.dir is not None, "outputs are staged inside the with block"
         p = self.dir / "new" / name
         try:
             p.parent.mkdir(parents=True, exist_ok=True)
@@ -179,12 +180,13 @@ class Staging:
                 else:
                     stale_keep.append(name)
                     entries[name] = {**e, "stale": True}
+        assert self.dir is not None, "outputs are staged inside the with block"
         new = self.dir / "new"
         for name in self.names:
             p = new / name
             entries[name] = {"name": name, "size": p.stat().st_size, "sha256": sha256_of(p),
                              "geomgen_version": __version__, "purpose": self.purposes.get(name, ""), **info}
-        manifest = {"written_by": "geomgen", "files": [entries[n] for n in sorted(entries)]}
+        manifest: dict = {"written_by": "geomgen", "files": [entries[n] for n in sorted(entries)]}
         try:
             (new / MANIFEST).write_text(json.dumps(manifest, indent=1) + "\n")
             (new / INDEX).write_text(format_index(manifest["files"]))
@@ -199,6 +201,7 @@ class Staging:
     def _swap_in(self, names: list[str], stale: list[dict]) -> tuple[list[str], bool]:
         """Journal, place, switch (see :mod:`.journal`); on any failure or Ctrl-C before the
         switch put every earlier output back."""
+        assert self.dir is not None, "outputs are staged inside the with block"
         had_old = {n: os.path.lexists(self.out_dir / n) for n in names}
         stale = [{"name": e["name"], "size": e.get("size"), "sha256": e.get("sha256")} for e in stale]
         plan = {"files": [{"name": n, "had_old": had_old[n]} for n in names], "stale": stale}

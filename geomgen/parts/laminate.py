@@ -65,7 +65,8 @@ def _moulds(model, solid, skin, rf, lam, machine, name_of, say, rep) -> list:
     what = f'surface "{name}" laminate mould'
     say(f"cutting the mould halves of {name}")
     B, t = rf.pose("upper")  # upper pose: machine Z along the part's upper normal
-    pts = skin.evaluate(np.linspace(0, 1, 81), np.linspace(skin.v_range[0], skin.v_range[1], 61)).reshape(-1, 3) @ B.T + t
+    v0, v1 = skin.v_range
+    pts = skin.evaluate(np.linspace(0, 1, 81), np.linspace(v0, v1, 61)).reshape(-1, 3) @ B.T + t
     lo, hi = pts.min(axis=0), pts.max(axis=0)
     # the parting surface reaches just past the block (its control net too: a CAD program's
     # default bounding box is then the block's): each chord line to 2 mm beyond the block's

@@ -134,6 +134,7 @@ def choose(v, f, usable, fallbacks=(), normals=((0, 1, 0), (0, -1, 0))) -> Pose:
         key = (0 if fits in (None, True) else 1, over > SUPPORT_SHARE * total, -contact, over)
         if best is None or key < best[0]:
             best = (key, Pose(R, np.zeros(3), what, contact, over, total, size, fits))
+    assert best is not None  # at least one candidate pose
     p = best[1]
     w = v @ p.R.T
     lo, hi = w.min(axis=0), w.max(axis=0)

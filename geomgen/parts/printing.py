@@ -89,6 +89,7 @@ def choose_pose(dims_print: np.ndarray, outboard: int, volume) -> tuple[np.ndarr
         key = (0 if fits in (None, True) else 1, pref)
         if best is None or key < best[0]:
             best = (key, M, name, fits)
+    assert best is not None  # at least one axis-aligned pose
     return best[1], best[2], best[3]
 
 
@@ -207,7 +208,7 @@ def plan_spars(model, ps) -> tuple[list[Tool], list[dict], list[str]]:
             cos = abs(d[1]) / np.linalg.norm(d)
             r_eff = r / cos
             ys = np.linspace(ya, yb, max(41, int((yb - ya) / 2.0) + 1))
-            worst = (math.inf, None)
+            worst: tuple[float, float | None] = (math.inf, None)
             for y in ys:
                 c = Al + (y - ya) / (yb - ya) * d
                 w = float(clearance(c[[0, 2]], section_local(model, float(y), 100))[0]) - r_eff

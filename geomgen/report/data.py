@@ -80,9 +80,9 @@ def _outline(model) -> dict:
         span.append(float(p[:, ax].mean()))
         le.append(float(p[:, 0].min()))
         te.append(float(p[:, 0].max()))
-    le, te = np.array(le), np.array(te)
-    return {"axis": "xyz"[ax], "span_mm": _r(span), "le_x_mm": _r(le), "te_x_mm": _r(te),
-            "quarter_chord_x_mm": _r(le + 0.25 * (te - le))}
+    le_x, te_x = np.array(le), np.array(te)
+    return {"axis": "xyz"[ax], "span_mm": _r(span), "le_x_mm": _r(le_x), "te_x_mm": _r(te_x),
+            "quarter_chord_x_mm": _r(le_x + 0.25 * (te_x - le_x))}
 
 
 def _section_shape(model, y: float) -> dict:

@@ -46,6 +46,8 @@ class Section:
         Largest distance (chord fractions) between a fitted curve and the file's points.
     """
 
+    source_info: dict  # what a coordinate file held (set by the file reader only)
+
     def __init__(self, upper: Curve, lower: Curve, label: str, fit_deviation: float | None = None):
         self._upper = upper
         self._lower = lower

@@ -64,7 +64,9 @@ class Expectation(_Strict):
     def tolerance_for(self, value: float) -> float:
         """Absolute tolerance (figure units) around ``value``."""
         if isinstance(self.tol, str):
-            return abs(value) * float(_TOL.match(self.tol).group(1)) / 100.0
+            m = _TOL.match(self.tol)
+            assert m is not None  # the validator accepted it
+            return abs(value) * float(m.group(1)) / 100.0
         return float(self.tol)
 
 

@@ -68,7 +68,7 @@ def variant_figures(text: str, source: str = "<variant>", *, cruise_kmh: float |
         return {"error": f"{source}: {exc}"}
     t = next((p for p in res.trim if abs(p.speed_kmh - v) < 1e-9), None)
     roles = {s.name: s.role for s in res.surfaces}
-    out = {k: None for k in FIGURES}
+    out: dict[str, float | None] = {k: None for k in FIGURES}
     out["cruise_kmh"] = float(v)
     for m in models:  # each surface's planform, as the family table shows it
         f = intended_figures(m)

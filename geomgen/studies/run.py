@@ -49,6 +49,7 @@ def _build_and_check(task: Task) -> dict:
     from ..errors import GeomgenError
     from ..project import Project
 
+    assert task.build_dir is not None  # called only for a variant that is built
     out = Path(task.build_dir)
     out.mkdir(parents=True, exist_ok=True)
     spec = out / "variant.toml"
@@ -76,7 +77,7 @@ class Executor:
         if self.address:
             return self._dask(tasks, say)
         if self.jobs <= 1 or n <= 1:
-            rows = []
+            rows: list = []
             for i, t in enumerate(tasks):
                 rows.append(evaluate(t))
                 say(i + 1, n)
@@ -84,7 +85,7 @@ class Executor:
         import multiprocessing
         from concurrent.futures import ProcessPoolExecutor, as_completed
 
-        rows: list = [None] * n
+        rows = [None] * n
         # spawn: fresh interpreters, nothing inherited from this process (threads, kernel)
         with ProcessPoolExecutor(max_workers=self.jobs, mp_context=multiprocessing.get_context("spawn")) as pool:
             futures = {pool.submit(evaluate, t): i for i, t in enumerate(tasks)}
