@@ -107,7 +107,7 @@ def _main_figures(data) -> list:
 
 def _balance(data) -> list:
     b = data["balance"]
-    out = [Heading(2, ["Balance"], "balance")]
+    out: list = [Heading(2, ["Balance"], "balance")]
     if b is None:
         return out + [Para(["No wing or stabilizer: no balance analysis."], "note")]
     B = lambda k, f=".1f": V(("balance", k), f)  # noqa: E731
@@ -172,7 +172,7 @@ def _balance(data) -> list:
 
 def _water(b) -> list:
     """Free surface, cavitation, drag and envelope, and where the rider stands (issue 11)."""
-    out = []
+    out: list = []
     fs, cv, pf, st = b.get("free_surface"), b.get("cavitation"), b.get("performance"), b.get("stance")
     if fs:
         F = lambda *k, f=".1f": V(("balance", "free_surface") + k, f)  # noqa: E731
@@ -244,7 +244,7 @@ def _views(data) -> list:
 
 
 def _sections(data) -> list:
-    out = [Heading(2, ["Sections at the stations"], "sections")]
+    out: list = [Heading(2, ["Sections at the stations"], "sections")]
     for i, s in enumerate(data["surfaces"]):
         out.append(Heading(3, [V(("surfaces", i, "name"), "str")]))
         rows = []
@@ -265,7 +265,7 @@ def _sections(data) -> list:
 
 
 def _spanwise(data) -> list:
-    cap = ["Chord, twist and lift loading along the span, from the root (one half of a mirrored part). "
+    cap: list = ["Chord, twist and lift loading along the span, from the root (one half of a mirrored part). "
            "Loading: section lift coefficient times local chord from the vortex lattice"]
     if data["balance"] is not None:
         cap += [" at the reference attitude of ", V(("balance", "alpha_ref_deg"), ".1f"), " °"]
@@ -307,7 +307,7 @@ def _check(data) -> list:
         bad.append(bool(r["bad"]))
     header = [["part"], ["figure"], ["unit"], ["intended"], ["measured STEP"], ["measured STL"], ["build tolerance"],
               ["expected"], ["± expected"], ["result"]]
-    out = [Heading(2, ["Check of the written files"], "check"),
+    out: list = [Heading(2, ["Check of the written files"], "check"),
            Para(["Each figure intended (from the spec), measured from the written STEP (through the CAD kernel, "
                  "skin sampled within ", V(("check", "skin_sampling_mm"), ".4f"), " mm) and STL (chordal tolerance ",
                  V(("check", "stl_tol_mm"), "g"), " mm), against the build tolerance and the calculation sheet's "
