@@ -11,11 +11,12 @@ from __future__ import annotations
 
 import errno
 import os
+import re
 from pathlib import Path
 
 import numpy as np
 
-from .. import defaults
+from .. import __version__, defaults
 from ..errors import ExportError
 
 
@@ -90,8 +91,6 @@ def _fixed_header(writer, file_name: str) -> None:
     from OCP.APIHeaderSection import APIHeaderSection_MakeHeader
     from OCP.TCollection import TCollection_HAsciiString
 
-    from .. import __version__
-
     hdr = APIHeaderSection_MakeHeader(writer.ChangeWriter().Model())
     hdr.SetName(TCollection_HAsciiString(file_name))
     hdr.SetTimeStamp(TCollection_HAsciiString(STEP_TIME_STAMP))
@@ -104,8 +103,6 @@ def _fixed_header(writer, file_name: str) -> None:
 def _renumber_occurrences(path: Path) -> None:
     """Number assembly occurrences 1, 2, ... in file order (the writer keeps a process-wide
     counter, so a second build in one process would otherwise differ in these ids)."""
-    import re
-
     text = path.read_bytes()
     counter = iter(range(1, 1 << 30))
     text = re.sub(rb"NEXT_ASSEMBLY_USAGE_OCCURRENCE\('\d+'",

@@ -7,7 +7,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .. import CAUTION, __version__
-from ..errors import CheckFailed, ExportError
+from ..errors import CheckFailed, ExportError, GeomgenError
 from ..geometry.figures import intended_figures
 from ..geometry.slices import Frame
 from ..outputs import Output, output_name, output_state, stale_outputs
@@ -132,7 +132,6 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
                        "section_properties": section_seconds}, project.stl_tol)
     res.modified, res.stale, res.notes = modified, stale, notes
     if project.spec.flight is not None:
-        from ..errors import GeomgenError
         from ..hydro import balance_of
 
         try:

@@ -14,6 +14,8 @@ below the foremost and lowest tower position.
 
 from __future__ import annotations
 
+import re
+
 import numpy as np
 
 from .. import CAUTION, __version__
@@ -80,8 +82,6 @@ def write_panel_gcode(p, path, *, shop, spec_name: str, side: str) -> None:
 
 def read_moves(text: str) -> np.ndarray:
     """(n, 4) X Y U V of every G0/G1 move with coordinates (a reader for tests)."""
-    import re
-
     out = []
     for line in text.splitlines():
         if line.startswith(("G0 ", "G1 ")) and "X" in line:

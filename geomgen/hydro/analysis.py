@@ -24,6 +24,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from .. import CAUTION
+from ..errors import SpecError
 from ..geometry.figures import PlanformFigures, planform_figures
 from ..spec.flight import DEFAULT_CHORD_PANELS, DEFAULT_CL_MAX, DEFAULT_SPAN_PANELS
 from .cavitation import cavitation
@@ -143,8 +144,6 @@ def _lateral(flow, ctx, alpha: float) -> Lateral:
 
 def pitch_surfaces(models) -> list:
     """Horizontal wings and stabilizers: the surfaces of the pitch balance (SpecError if none)."""
-    from ..errors import SpecError
-
     lifting = [m for m in models if m.role in PITCH_ROLES and m.orientation == "horizontal"]
     if not lifting:
         raise SpecError("surface: the balance needs at least one horizontal surface with role 'wing' or 'stabilizer'")
@@ -328,7 +327,6 @@ def analyse_spec(spec, **kwargs) -> HydroResult:
     **kwargs
         Passed to :func:`analyse` (panel counts, ``alpha_deg``, ``cg_x_mm``, ...).
     """
-    from ..errors import SpecError
     from ..geometry.model import build_models
 
     models = build_models(spec)
@@ -344,8 +342,6 @@ def balance_of(project, **kwargs) -> HydroResult:
     once per run and keyword set (``balance``, ``check``, ``report`` and ``parts`` share it).
 
     Raises SpecError naming the spec file when the set cannot be balanced."""
-    from ..errors import SpecError
-
     def solve() -> HydroResult:
         models = project.models  # its own problems already name the file and field
         try:

@@ -24,11 +24,12 @@ flat or parabolic mean line on uniform panels).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
 from .. import defaults
+from ..errors import SpecError
 
 #: Chord-fraction step of the finite difference for the camber-surface tangent.
 TANGENT_STEP = 1e-3
@@ -200,8 +201,6 @@ def check_memory(models, span_panels: int, chord_panels: int,
                  budget: int = defaults.LATTICE_MEMORY_BUDGET_BYTES) -> None:
     """Refuse (SpecError naming the [flight] panel counts) a lattice over the memory budget,
     before anything is allocated."""
-    from ..errors import SpecError
-
     n = panel_count(models, span_panels, chord_panels)
     need = memory_needed(n)
     if need > budget:
@@ -280,8 +279,6 @@ def image_lattice(lat: Lattice) -> Lattice:
         q = np.array(p, float, copy=True)
         q[..., 2] = 2.0 * zw - q[..., 2]
         return q
-
-    from dataclasses import replace
 
     assert lat.edge_surface is not None  # set by build_lattice
     return replace(lat, A=refl(lat.A), B=refl(lat.B), colloc=refl(lat.colloc), edge_from=refl(lat.edge_from),

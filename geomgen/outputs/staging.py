@@ -27,6 +27,7 @@ import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .. import __version__
 from ..errors import ExportError
 from . import journal
 from .formats import Output
@@ -164,8 +165,6 @@ class Staging:
         name), ``spec_sha256`` and ``command``. Files of the same set from another spec hash
         or geomgen version are removed (or, if edited since, left and reported).
         """
-        from .. import __version__
-
         previous = _own_manifest(self.out_dir)
         self._check_foreign(previous)
         entries = {name: e for name, e in previous.items() if (self.out_dir / name).is_file()}
@@ -257,8 +256,6 @@ def write_set(out_dir, outputs: list[Output], info: dict, say=None, overwrite_ed
 
 def stale_outputs(out_dir, set_name: str, spec_sha256: str) -> list[str]:
     """Files of set ``set_name`` in ``out_dir`` made from another spec or geomgen version."""
-    from .. import __version__
-
     return sorted(n for n, e in read_manifest(out_dir).items()
                   if e.get("set", _set_of(e)) == set_name and (Path(out_dir) / n).is_file()
                   and (e.get("spec_sha256") != spec_sha256 or e.get("geomgen_version") != __version__))

@@ -7,6 +7,7 @@ the root chord line, Y along the span, Z toward the upper side; see
 
 from __future__ import annotations
 
+import itertools
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -170,8 +171,6 @@ def clearance(pts, poly: np.ndarray) -> np.ndarray:
 
 def rotations24() -> list[np.ndarray]:
     """The 24 proper rotations that map coordinate axes onto coordinate axes."""
-    import itertools
-
     out = []
     for perm in itertools.permutations(range(3)):
         for signs in itertools.product((1, -1), repeat=3):

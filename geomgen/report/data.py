@@ -10,12 +10,15 @@ the upper side), rounded to 0.001 mm.
 
 from __future__ import annotations
 
+import copy
+import json
 import math
 
 
 import numpy as np
 
 from .. import CAUTION, __version__
+from ..errors import SpecError
 
 #: Version of the report dict's layout (bump when a key changes meaning).
 REPORT_FORMAT = 1
@@ -239,7 +242,6 @@ def drawing_data(project, *, progress=None) -> dict:
     project : :class:`~geomgen.project.Project`
     progress : callable(str), optional
     """
-    from ..errors import SpecError
     from ..geometry.figures import intended_figures
     from ..hydro import balance_of
 
@@ -302,8 +304,6 @@ def report_data(project, out_dir=None, *, progress=None, drawing: dict | None = 
         JSON-able (no nan): ``spec``, ``caution``, ``surfaces`` (figures, measured figures, MAC,
         stations, outlines, spanwise chord and twist, loading), ``check``, ``balance``, ``hydro``.
     """
-    import copy
-
     from ..check.run import check
     from ..project import Project
 
@@ -329,8 +329,6 @@ COMPARISON_FIGURES = ("wing_lift_n", "stab_lift_n", "stab_lift_pct_weight", "dra
 def _comparison(project) -> dict | None:
     """The set's latest what-if comparison (``geomgen compare`` into the same folder), if it was
     made from this very spec (same hash in the manifest); else None."""
-    import json
-
     from ..outputs import output_name, read_manifest
     from ..studies.figures import FIGURES
 

@@ -4,6 +4,7 @@ condition the user states (speed and load factor; no default), for a material th
 from __future__ import annotations
 
 from .. import CAUTION, __version__
+from ..errors import SpecError
 
 #: Printed above and below every result of this package.
 FIRST_ESTIMATE = (
@@ -17,7 +18,6 @@ def loads(project, speed_kmh: float, load_factor: float, material, allowable_mpa
           side_force_n: float = 100.0) -> dict:
     """Loads and first estimates of every surface of ``project`` (a Project). Wings and
     stabilizers need the spec's ``[flight]`` mass; masts do not. Returns a JSON-able dict."""
-    from ..errors import SpecError
     from .estimate import mast_estimate, stiffness_along, wing_estimate
 
     models = project.models

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import math
 
+from ..errors import GeomgenError
+
 #: figure key -> (heading, unit), in table order
 FIGURES = {
     "wing_lift_n": ("front wing lift", "N"),
@@ -47,7 +49,6 @@ def variant_figures(text: str, source: str = "<variant>", *, cruise_kmh: float |
     Returns a dict of :data:`FIGURES` keys (None where a figure does not apply) plus
     ``cruise_kmh``; or ``{"error": message}`` when the variant cannot be made or balanced.
     """
-    from ..errors import GeomgenError
     from ..geometry import build_models
     from ..geometry.figures import intended_figures
     from ..hydro import analyse

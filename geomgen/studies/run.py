@@ -7,8 +7,10 @@ executor, so the table is the same bytes whichever ran it.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from pathlib import Path
 from typing import Callable
 
+from ..errors import GeomgenError, SpecError
 from .figures import variant_figures
 
 
@@ -43,10 +45,7 @@ def evaluate(task: Task) -> dict:
 
 def _build_and_check(task: Task) -> dict:
     """Build and check one variant from its text (written beside its output folder)."""
-    from pathlib import Path
-
     from ..check.run import check
-    from ..errors import GeomgenError
     from ..project import Project
 
     assert task.build_dir is not None  # called only for a variant that is built
@@ -82,7 +81,7 @@ class Executor:
                 rows.append(evaluate(t))
                 say(i + 1, n)
             return rows
-        import multiprocessing
+        import multiprocessing  # only a parallel run pays for the process pool's imports
         from concurrent.futures import ProcessPoolExecutor, as_completed
 
         rows = [None] * n
@@ -95,8 +94,6 @@ class Executor:
         return rows
 
     def _dask(self, tasks: list[Task], say) -> list[dict]:
-        from ..errors import SpecError
-
         try:
             from distributed import Client, as_completed
         except ImportError:

@@ -6,6 +6,7 @@ from __future__ import annotations
 import csv
 import io
 import math
+import re
 
 from .. import CAUTION
 from .figures import FIGURES
@@ -131,8 +132,6 @@ def plots(t: Table, pairs: list[tuple[str, str]]) -> dict[str, bytes]:
 
 def study_outputs(project, t: Table, pairs=(), specs: dict | None = None) -> list:
     """The set's outputs of a study: text, CSV, JSON, Parquet (if available), plots, specs."""
-    import re
-
     from ..outputs import Output, output_name
 
     def name(*w, suffix):
