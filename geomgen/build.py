@@ -108,7 +108,9 @@ def format_build_summary(res: BuildResult, for_file: bool = False) -> str:
         f = p.figures
         lines.append(f"{p.name:<16} {p.role:<10} {f.span_mm:9.1f} {f.projected_area_cm2:10.1f} "
                      f"{f.aspect_ratio:6.2f} {f.mac_mm:8.2f} {f.volume_cm3:11.1f}")
-    lines += ["", "intended figures (from the spec); 'geomgen check' measures the files."]
+    lines += ["", "intended figures (from the spec); area, AR and MAC in each part's reference plane (root chord "
+              "line x span axis: the incidence does not change them; README 'What the figures mean'); "
+              "'geomgen check' measures the files."]
     if res.notes:
         lines += [""] + [f"note: {n}" for n in res.notes]
     lines += ["", "written:"]

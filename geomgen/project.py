@@ -13,6 +13,7 @@ by the functions of those layers, so this module imports nothing above the geome
 
 from __future__ import annotations
 
+import copy
 from functools import cached_property
 from pathlib import Path
 from typing import Any, Callable
@@ -58,12 +59,29 @@ class Project:
 
     @classmethod
     def of(cls, spec_or_project, out_dir=None, **options) -> "Project":
-        """A project from a path, or the project itself (library callers may pass either)."""
-        if isinstance(spec_or_project, Project):
-            if out_dir is not None and Path(out_dir) != spec_or_project.out_dir:
-                spec_or_project.out_dir = Path(out_dir)
-            return spec_or_project
-        return cls(spec_or_project, out_dir, **options)
+        """A project from a path, or a project itself (library callers may pass either).
+
+        A project passed with another ``out_dir`` or other options (``stl_tol``,
+        ``overwrite_edited``; ``allow_outside_files=True``) is not changed: the call gets a
+        project of its own with those settings, sharing the loaded spec and the geometry
+        models (they depend on the spec alone) but none of the results (they depend on the
+        folder and the options). ``None`` and ``allow_outside_files=False`` ask for nothing."""
+        if not isinstance(spec_or_project, Project):
+            return cls(spec_or_project, out_dir, **{k: v for k, v in options.items() if v is not None})
+        p = spec_or_project
+        want = {k: v for k, v in options.items() if v is not None and getattr(p, k) != v
+                and not (k == "allow_outside_files" and not v)}
+        if (out_dir is None or Path(out_dir) == p.out_dir) and not want:
+            return p
+        if "allow_outside_files" in want:  # the spec must be read again under the wider rule
+            return cls(p.spec_path, out_dir if out_dir is not None else p.out_dir,
+                       **{"stl_tol": p.stl_tol, "overwrite_edited": p.overwrite_edited, **want})
+        q = copy.copy(p)  # shares spec, digest and the cached models
+        q.out_dir = Path(out_dir) if out_dir is not None else p.out_dir
+        for k, v in want.items():
+            setattr(q, k, float(v) if k == "stl_tol" else v)
+        q._memo = {}
+        return q
 
     @property
     def name(self) -> str:

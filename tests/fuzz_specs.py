@@ -66,11 +66,16 @@ def spec_params(draw, files: bool = False):
             s["twist"] = draw(st.floats(-10.0, 10.0))
         s["section"] = draw(st.sampled_from(["a", "b"]))
         stations.append(s)
+    mirror = draw(st.booleans())
+    if mirror and stations[0]["y"]:  # a mirrored part's halves meet at span 0
+        y0 = stations[0]["y"]
+        for s in stations:
+            s["y"] = round(s["y"] - y0, 3)
     return {
         "a": draw(naca_designation()), "b": draw(naca_designation()),
         "invert_b": draw(st.booleans()),
         "thickness_b": draw(st.one_of(st.none(), st.floats(6.0, 20.0))),
-        "mirror": draw(st.booleans()),
+        "mirror": mirror,
         "orientation": draw(st.sampled_from(["horizontal", "vertical-up", "vertical-down"])),
         "interpolation": draw(st.sampled_from(["linear", "smooth"])),
         "incidence": draw(st.floats(-10.0, 10.0)),

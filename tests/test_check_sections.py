@@ -76,7 +76,7 @@ def test_chord_line_runs_to_the_trailing_edge_midpoint_whatever_the_sampling():
     import numpy as np
 
     from geomgen.geometry.sectionprops import section_properties
-    from geomgen.geometry.slices import section_frame
+    from geomgen.geometry.chordline import section_frame
 
     fine = _open_loop("0012", 37.0, 1.0, 600)
     coarse = _open_loop("0012", 37.0, 1.0, 41, shift=0.013)

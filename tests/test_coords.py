@@ -310,3 +310,34 @@ def test_a_cusped_joukowski_section_is_read_as_it_is(n):
         exact_t = np.interp(x, up[:, 0], up[:, 1]) - np.interp(x, lo[:, 0], lo[:, 1])
         fitted_t = float(np.interp(x, xu, yu) - np.interp(x, xl, yl))
         assert fitted_t == pytest.approx(exact_t, abs=5e-4 + 1e-3 * (n < 100))
+
+
+@pytest.mark.parametrize("kind", ["spike", "zigzag"])
+def test_a_file_the_loft_cannot_follow_is_refused_naming_the_point(kind):
+    """One point spiked by 0.3 chord, or every point moved ±0.2 % chord in turn: the smooth fit
+    follows them and waves (14 and 46 changes of curvature against 0-2 on the formula's
+    points), which the loft cannot carry between its samples (the check read the thickness
+    2.2 mm low). Refused, the file's line named."""
+    up, lo = formula_points("2412")
+    p = np.vstack([up[::-1], lo[1:]])
+    if kind == "spike":
+        k = len(p) // 4
+        p[k, 1] += 0.3
+    else:
+        p[:, 1] += 0.002 * (-1.0) ** np.arange(len(p))
+    with pytest.raises(SpecError) as exc:
+        parse_coordinates("test\n" + fmt(p), source="w.dat")
+    msg = str(exc.value)
+    assert "not fair" in msg and "w.dat line" in msg
+    if kind == "spike":
+        assert f"line {k + 2}" in msg  # the name line first, then the points
+
+
+@pytest.mark.parametrize("designation", ["2412", "23112", "25112", "4415", "9730", "0006"])
+@pytest.mark.parametrize("decimals,seed", [(6, None), (5, 1), (4, None), (5, 2)])
+def test_real_files_are_fair(designation, decimals, seed):
+    """The fairness rule refuses none of the formula's points at 4-6 decimals or with noise."""
+    up, lo = formula_points(designation)
+    p = np.vstack([up[::-1], lo[1:]])
+    p = noisy(p, seed) if seed is not None else p
+    parse_coordinates("test\n" + fmt(p, decimals), source="w.dat")

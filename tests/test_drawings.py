@@ -336,3 +336,32 @@ def test_same_spec_same_drawing_bytes(tmp_path):
     sa, sb = snapshot(a), snapshot(b)
     assert sa.keys() == sb.keys() and any(k.endswith(".pdf") for k in sa) and any(k.endswith(".dxf") for k in sa)
     assert [k for k in sa if sa[k] != sb[k]] == []
+
+
+def test_templates_offsets_and_the_check_agree_on_the_chord(write_spec, tmp_path):
+    """NACA 4415 typed at 240 mm: the template's chord line is 240 mm from the leading edge, its
+    outline reaches ahead of it (Abbott & von Doenhoff §6.4: the upper surface laid square to
+    the mean line) and the label says both lengths; the offset table starts at that foremost
+    point and gives the chord as typed; the check's intended chord is the same 240 mm."""
+    from geomgen.geometry.figures import section_figures
+    from scipy.spatial.distance import pdist
+
+    spec, _ = _write(write_spec, tmp_path, section='naca = "4415"', te=0.3,
+                     stations=[dict(y=0, chord=240), dict(y=500, chord=120)])
+    model = build_models(load_spec(spec))[0]
+    doc = ezdxf.readfile(tmp_path / "out" / "drawings/t-w-templates.dxf")
+    ents = dict((name, list(g)) for name, g in doc.groups)["template y=0"]
+    (outline,) = [e for e in ents if e.dxftype() == "LWPOLYLINE"]
+    (cl,) = [e for e in ents if e.dxf.layer == "chord-line"]
+    pts = np.array(list(outline.get_points("xy"))) - [cl.dxf.start.x, cl.dxf.start.y]
+    assert cl.dxf.end.x - cl.dxf.start.x == pytest.approx(240.0, abs=1e-9)
+    extent = float(pdist(pts).max())
+    assert 240.1 < extent < 240.3 and pts[:, 0].min() < -0.1
+    text = " ".join(e.dxf.text for e in ents if e.dxftype() == "TEXT")
+    assert "chord 240.00 mm" in text and f"outline {extent:.2f} end to end" in text
+    rows = [r for r in _csv_rows(tmp_path / "out" / "drawings/t-w-offsets.csv") if float(r["y_mm"]) == 0.0]
+    assert float(rows[0]["x_mm"]) == pytest.approx(pts[:, 0].min(), abs=0.01)
+    assert float(rows[0]["thickness_mm"]) == 0.0
+    assert all(float(r["chord_mm"]) == 240.0 for r in rows)
+    f = section_figures(model, 0.0)
+    assert f["chord_mm"] == pytest.approx(240.0, abs=1e-6) and f["extent_mm"] == pytest.approx(extent, abs=0.01)

@@ -219,3 +219,20 @@ def test_mesh_keeps_within_its_chordal_tolerance_inside_every_quad(which):
     span = 2 * m.half_span if m.mirror else m.half_span - float(m.planform.y[0])
     assert mesh.area - exact <= 1e-3 * exact  # never more than the check allows above
     assert exact - mesh.area <= 1e-3 * exact + 2 * np.pi * tol * span
+
+
+@pytest.mark.parametrize("root,tip,half", [(200.0, 120.0, 400.0), (1600.0, 1900.0, 5.0), (40.0, 12.0, 300.0)])
+def test_a_rounded_tip_skin_follows_its_ellipse_between_loft_sections(root, tip, half):
+    """The skin's spanwise cubic over a rounded tip (default length and end chord) against
+    the model's quarter ellipse, at 400 positions between loft sections: within 0.01 mm. With
+    a fixed 8 tip sections it strayed 0.8 mm on a 120 mm tip chord and 17.6 mm on a 1,900 mm
+    one (the long command-line run found the large one as a MAC fault)."""
+    from geomgen.check.compare import polyline_distance
+    from geomgen.geometry.slices import SkinSlicer
+
+    m = model_of(wing_spec(te=0.3, section='naca = "2412"', extra='tip = "round"',
+                           stations=[dict(y=0, chord=root), dict(y=half, chord=tip)]))
+    sl = SkinSlicer(m.skin, 1)
+    ys = np.linspace(half + 1e-3, m.half_span - 1e-3, 400)
+    worst = max(float(polyline_distance(m.section_loop(float(y), 300), sl.slice([y])[0]).max()) for y in ys)
+    assert worst < 0.01, worst

@@ -79,3 +79,31 @@ def test_project_memo_and_default_folder(write_spec):
     assert Project.of(p) is p
     info = p.output_info("build")
     assert info["set"] == "t" and info["command"] == "build" and len(info["spec_sha256"]) == 64
+
+
+def test_a_second_check_with_other_options_measures_again(tmp_path, write_spec):
+    """The memo is keyed by how the check was asked: check(p) then check(p, rebuild=True,
+    write_record=False) runs twice; check(p, out_b, stl_tol=0.01) measures in out_b at 0.01 mm
+    and leaves p's own folder, tolerance and result alone."""
+    from unittest import mock
+
+    from geomgen.check import run as check_run
+    from geomgen.project import Project
+
+    p = Project(write_spec(wing_spec()), tmp_path / "a")
+    calls = []
+    real = check_run._check
+
+    def counting(project, *a, **k):
+        calls.append((project.out_dir, project.stl_tol))
+        return real(project, *a, **k)
+
+    with mock.patch.object(check_run, "_check", counting):
+        r1 = check_run.check(p)
+        r2 = check_run.check(p, rebuild=True, write_record=False)
+        r3 = check_run.check(p, tmp_path / "b", stl_tol=0.01)
+        r4 = check_run.check(p)
+    assert len(calls) == 3 and r4 is not r3
+    assert calls[2] == (tmp_path / "b", 0.01) and r3.out_dir == tmp_path / "b" and r3.stl_tol == 0.01
+    assert p.out_dir == tmp_path / "a" and p.stl_tol != 0.01 and r1.out_dir == tmp_path / "a"
+    assert r2.built and (tmp_path / "b" / "print").is_dir()

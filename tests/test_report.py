@@ -16,6 +16,7 @@ from pathlib import Path
 import pytest
 
 from geomgen import CAUTION
+from geomgen.check.run import memo_key
 from geomgen.outputs import MANIFEST, read_manifest
 from geomgen.project import Project
 from geomgen.report import render_files, report_data, write_report
@@ -299,7 +300,7 @@ def cg_data(tmp_path_factory):
     spec = spec_with_cg(tmp)
     res = fake_check(spec, tmp / "out", nudge={("front-wing", "span_mm"): 3.0, ("stabilizer", "mac_mm"): 0.5})
     project = Project(spec, tmp / "out")
-    project.memo("check.result", lambda: res)  # the project's check, as if measured in this run
+    project.memo(memo_key(), lambda: res)  # the project's check, as if measured in this run
     return report_data(project)
 
 
@@ -372,7 +373,7 @@ def test_balance_without_a_mast_shows_the_centre_of_pressure_from_the_datum_orig
     spec = tmp_path / "no-mast.toml"
     spec.write_text(text)
     project = Project(spec, tmp_path / "out")
-    project.memo("check.result", lambda: fake_check(spec, tmp_path / "out"))
+    project.memo(memo_key(), lambda: fake_check(spec, tmp_path / "out"))
     data = report_data(project)
     b = data["balance"]
     assert b["mast_x_mm"] is None

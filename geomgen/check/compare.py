@@ -99,8 +99,14 @@ def build_tolerances(fig: str, intended: dict, stl_tol: float, span: float,
         # a polygon inscribed in a section with sagitta <= stl_tol falls short of its length by
         # about stl_tol/3 per radian turned (s θ²/24 with sagitta s θ²/8), 2π/3 stl_tol round a
         # convex section whatever its nose radius; three times that per mm of span covers
-        # reflex camber and spanwise curvature (a fixed 0.2 % faulted a 40 mm chord part)
-        return V * v, V * v + 2 * math.pi * stl_tol * span / 100
+        # reflex camber and spanwise curvature (a fixed 0.2 % faulted a 40 mm chord part).
+        # The two flat end caps: a boundary within stl_tol of the section's moves the cap's
+        # area by at most stl_tol x its perimeter (under 2.5 chords for any section the schema
+        # allows; two caps at most the larger end chord's each); on a 0.5 mm span of 40 and
+        # 8 mm chords the caps are most of the area
+        end_chord = max(abs(intended.get("root_chord_mm") or 0.0), abs(intended.get("tip_chord_mm") or 0.0))
+        caps = stl_tol * 2.5 * 2 * end_chord
+        return V * v, V * v + (2 * math.pi * stl_tol * span + caps) / 100
     if fig.startswith("centroid"):
         return L, 2 * stl_tol + 0.1
     return L, stl_len

@@ -150,7 +150,7 @@ class Cut:
     def extent(self) -> float:
         """The outline's largest extent (a caliper's reading), mm; a little over the chord on a
         cambered section."""
-        from ..geometry.slices import section_diameter
+        from ..geometry.chordline import section_diameter
 
         p = np.column_stack([self.outline[:, 0], np.zeros(len(self.outline)), self.outline[:, 1]])
         return section_diameter(p)[0]

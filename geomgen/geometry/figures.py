@@ -66,13 +66,14 @@ def _nodes(model) -> tuple[np.ndarray, np.ndarray]:
 def outline_at(model, y: float) -> tuple[float, float, float, float]:
     """At span ``y``: (leading-edge coordinate, chord) of the nominal chord line projected on
     the reference plane, and (foremost datum x, x extent) of the outline, mm."""
-    from .slices import RefPlane, chord_lines
+    from .chordline import chord_lines, datum_extent
+    from .slices import RefPlane
 
     pts = model.section_loop(y, OUTLINE_POINTS)
     le, te = chord_lines(pts[None], model.leading_edge(y)[None])
     plane = RefPlane(np.asarray(model.R[:, 0], float), np.asarray(model.position, float))
-    return (float(plane.along(le)[0]), float((te[0] - le[0]) @ plane.e),
-            float(pts[:, 0].min()), float(pts[:, 0].max() - pts[:, 0].min()))
+    (x0,), (dc,) = datum_extent(pts[None])
+    return float(plane.along(le)[0]), float((te[0] - le[0]) @ plane.e), float(x0), float(dc)
 
 
 @dataclass(frozen=True)
@@ -181,11 +182,11 @@ SECTION_POINTS = 600
 def section_figures(model, y: float) -> dict:
     """Chord, largest extent, max thickness (mm, % chord) and its position (% chord) of the
     finished section at ``y``, by the same definition the check applies to the written file's
-    slice (:func:`geomgen.geometry.slices.chord_and_thickness`: chord = the nominal chord
+    slice (:func:`geomgen.geometry.chordline.chord_and_thickness`: chord = the nominal chord
     line, the section family's leading edge to the trailing-edge midpoint, as typed;
     thickness normal to it; the extent beside it: on a cambered section it exceeds the
     chord slightly, NACA 4415 by about 0.07 %)."""
-    from .slices import chord_and_thickness
+    from .chordline import chord_and_thickness
 
     axis = int(np.argmax(np.abs(model.span_axis)))
     return chord_and_thickness(model.section_loop(float(y), SECTION_POINTS), axis, model.leading_edge(y))

@@ -4,7 +4,8 @@ axes, section moduli and torsion constants (numpy; the warping solution by ``sec
 Frame: a section is taken in its own chord frame, x from the leading edge along the chord
 line (toward the trailing edge), z normal to it toward the upper side (for a mast or fin:
 toward the side the section's upper surface faces). The chord line is that of
-:func:`geomgen.geometry.slices.chord_and_thickness` (the section's largest extent), so the
+:func:`geomgen.geometry.chordline.section_frame` (from the point farthest from the trailing-edge
+midpoint to that midpoint), so the
 intended section (from the model) and the measured one (a slice of the written STEP) are
 put in the same frame by the same code.
 
@@ -190,7 +191,7 @@ def resample_sides(p2: np.ndarray, i_le: int, n: int) -> np.ndarray:
 def chord_frame(points: np.ndarray, axis: int) -> tuple[np.ndarray, int, float]:
     """(points (n, 2) in the chord frame, index of the leading edge, chord mm) of an ordered
     section polyline (n, 3) in a plane normal to datum ``axis``."""
-    from .slices import section_frame
+    from .chordline import section_frame
 
     chord, i_le, e, nrm = section_frame(points, axis)
     d = points - points[i_le]

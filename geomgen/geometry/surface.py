@@ -153,9 +153,9 @@ class SurfaceModel:
         station), ``mirrored``, datum coordinate ``origin`` of span 0 (station positions count
         from it), the reference plane (``chord_dir``: datum direction of the root chord line
         at zero twist, i.e. datum x turned by the incidence; ``ref_point``: the root reference
-        point) and ``le_at`` (where the design puts the leading edge at datum span
-        coordinates) and ``te_at`` (its trailing-edge corners). Sections lie in planes of
-        constant local Y, which incidence and twist leave alone."""
+        point), ``le_at`` (where the design puts the leading edge at datum span coordinates)
+        and ``te_at`` (its trailing-edge corners). Sections lie in planes of constant local
+        Y, which incidence and twist leave alone."""
         d = self.span_axis
         axis = int(np.argmax(np.abs(d)))
         sign = float(np.sign(d[axis]))
@@ -266,9 +266,7 @@ class SurfaceModel:
         last = float(self.planform.y[-1])
         for a, c in zip(breaks[:-1], breaks[1:]):
             if self.tip_length and min(abs(a), abs(c)) >= last - 1e-9:  # rounded tip: even in the ellipse angle
-                th = np.linspace(0.0, self._theta_max, max(defaults.LOFT_SECTIONS_PER_INTERVAL_MIN + 3, n_half // 3))
-                y = last + self.tip_length * np.sin(th)
-                y[-1] = self.half_span
+                y = self._tip_sections(max(defaults.LOFT_SECTIONS_PER_INTERVAL_MIN + 3, n_half // 3))
                 segs.append(y if c > 0 else -y[::-1])
                 continue
             # map |y| through theta = asin(|y|/b) so spacing is uniform in theta
@@ -280,6 +278,27 @@ class SurfaceModel:
             y[0], y[-1] = a, c
             segs.append(self._with_stations(y, a, c))
         return segs
+
+    def _tip_sections(self, n: int) -> np.ndarray:
+        """Loft positions over the rounded tip, even in the ellipse angle, at least ``n`` and as
+        many more (doubling) as the skin's spanwise cubic through them needs to stay within
+        ``LOFT_TIP_TOL_MM`` of the ellipse's chord (the chord changes ever faster toward the
+        end: a fixed count strayed by 0.7 % of the tip chord between the last two)."""
+        from scipy.interpolate import make_interp_spline
+
+        last, L = float(self.planform.y[-1]), self.tip_length
+        c0 = float(self.planform("chord", last))
+        while True:
+            th = np.linspace(0.0, self._theta_max, n)
+            y = last + L * np.sin(th)
+            y[-1] = self.half_span
+            fine = np.linspace(0.0, self._theta_max, 16 * n)
+            yf = last + L * np.sin(fine)
+            cubic = make_interp_spline(y, c0 * np.cos(th), k=3)
+            err = np.abs(cubic(np.clip(yf, y[0], y[-1])) - c0 * np.cos(fine)).max()
+            if err <= defaults.LOFT_TIP_TOL_MM or n >= defaults.LOFT_TIP_SECTIONS_MAX:
+                return y
+            n = min(int(math.ceil(1.25 * n)), defaults.LOFT_TIP_SECTIONS_MAX)
 
     def _with_stations(self, y: np.ndarray, a: float, c: float) -> np.ndarray:
         """Smooth interpolation crosses stations inside a segment: put a loft section on each

@@ -28,7 +28,7 @@ SECTION_POINTS, SPAN_SAMPLES = 80, 81
 
 #: Figures summarised per part (keys of the check records), in this order.
 MAIN_FIGURES = ("span_mm", "projected_area_cm2", "aspect_ratio", "mac_mm", "mac_y_mm", "mac_le_x_mm",
-                "mac_qc_x_mm", "volume_cm3", "wetted_area_cm2")
+                "mac_qc_x_mm", "volume_cm3", "wetted_area_cm2", "datum_area_cm2")
 
 
 def _clean(v):
