@@ -10,7 +10,7 @@ $(STAMP): pyproject.toml
 	$(BIN)/python -m pip install -q -e '.[test]'
 	touch $(STAMP)
 
-.PHONY: demo test test-fast bench setup fuzz-long
+.PHONY: demo lint test test-fast bench setup fuzz-long
 setup: $(STAMP)
 
 # The demo set into out/demo-foilset (the default folder rule: out/<spec file name>):
@@ -20,7 +20,12 @@ demo: $(STAMP)
 	$(BIN)/geomgen drawings specs/demo-foilset.toml
 	$(BIN)/geomgen report specs/demo-foilset.toml
 
-test: $(STAMP)
+# The style and type gate (settings in pyproject.toml): zero findings, run first by `make test`.
+lint: $(STAMP)
+	$(BIN)/ruff check geomgen tests bench
+	$(BIN)/mypy geomgen
+
+test: lint
 	$(BIN)/python -m pytest -q
 
 test-fast: $(STAMP)

@@ -33,7 +33,8 @@ def command_times():
     with tempfile.TemporaryDirectory() as tmp:
         for cmd in ("build", "check", "drawings", "balance", "report"):
             out = Path(tmp) / cmd
-            args = [sys.executable, "-m", "geomgen.cli", cmd, str(DEMO)] + (["-o", str(out)] if cmd != "balance" else [])
+            args = ([sys.executable, "-m", "geomgen.cli", cmd, str(DEMO)]
+                    + (["-o", str(out)] if cmd != "balance" else []))
             t = time.perf_counter()
             r = subprocess.run(args, capture_output=True, text=True)
             times[cmd] = time.perf_counter() - t
@@ -48,8 +49,8 @@ def command_times():
             pair = {}
             for cmd in ("check", "report"):
                 t = time.perf_counter()
-                subprocess.run([sys.executable, "-m", "geomgen.cli", cmd, str(DEMO), "-o", str(Path(tmp) / f"{cmd}{k}")],
-                               capture_output=True)
+                subprocess.run([sys.executable, "-m", "geomgen.cli", cmd, str(DEMO),
+                                "-o", str(Path(tmp) / f"{cmd}{k}")], capture_output=True)
                 pair[cmd] = time.perf_counter() - t
             ratio.append(pair["report"] / pair["check"])
     print(f"  report / check (median of 3 fresh pairs): {statistics.median(ratio):.2f}  [target <= 1.3]")

@@ -89,7 +89,8 @@ def main(argv: list[str]) -> int:
         rows.append((ns, nc, n, t_np, t_full, x))
     print_water_figures(spec_path)
     x_ref = rows[-1][-1]
-    print(f"{'strips/half':>11} {'chord':>5} {'panels':>6} {'NP s':>7} {'analyse s':>9} {'NP x mm':>9} {'vs finest %MAC':>14}")
+    print(f"{'strips/half':>11} {'chord':>5} {'panels':>6} {'NP s':>7} {'analyse s':>9} {'NP x mm':>9} "
+          f"{'vs finest %MAC':>14}")
     for ns, nc, n, t_np, t_full, x in rows:
         mark = "  <- default" if (ns, nc) == (DEFAULT_SPAN_PANELS, DEFAULT_CHORD_PANELS) else ""
         print(f"{ns:>11} {nc:>5} {n:>6} {t_np:>7.3f} {t_full:>9.3f} {x:>9.2f} {(x - x_ref) / mac * 100:>14.3f}{mark}")

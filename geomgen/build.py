@@ -62,7 +62,7 @@ def build(project, out_dir=None, *, formats=("step", "stl"), stl_tol: float | No
     """
     from .cad.shape import shapes_of
 
-    opts = {"allow_outside_files": allow_outside_files}
+    opts: dict[str, object] = {"allow_outside_files": allow_outside_files}
     if stl_tol is not None:
         opts["stl_tol"] = stl_tol
     project = Project.of(project, out_dir, **opts)

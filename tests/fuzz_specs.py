@@ -118,8 +118,8 @@ def coordinate_files(p: dict) -> dict:
 
 def spec_text(p: dict) -> str:
     lines = ['format = 1', 'name = "fz"', '[datum]', 'origin = "fuzz origin"',
-             '[sections.a]', f'file = "a.dat"' if p.get("file_a") else f'naca = "{p["a"]}"', '[sections.b]', f'naca = "{p["b"]}"',
-             f'invert = {str(p["invert_b"]).lower()}']
+             '[sections.a]', 'file = "a.dat"' if p.get("file_a") else f'naca = "{p["a"]}"',
+             '[sections.b]', f'naca = "{p["b"]}"', f'invert = {str(p["invert_b"]).lower()}']
     if p["thickness_b"] is not None:
         lines.append(f'thickness_pct = {p["thickness_b"]!r}')
     lines += ['[[surface]]', 'name = "part"', 'role = "wing"', f'mirror = {str(p["mirror"]).lower()}',

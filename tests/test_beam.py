@@ -14,7 +14,7 @@ from geomgen.strength.beam import (deflection, distributed_shear_and_moment, fir
 
 def test_cantilever_end_load():
     # δ = F L³ / (3 E I), root moment F L, root stress F L / W
-    L, F, E, I = 800.0, 100.0, 70e3, 2.0e4
+    L, F, E, I = 800.0, 100.0, 70e3, 2.0e4  # noqa: E741 (I: second moment of area)
     s = np.linspace(0, L, 4001)
     v, m = shear_and_moment(s, [L + 1e-9], [F])
     assert v[0] == pytest.approx(F) and m[0] == pytest.approx(F * L)
@@ -47,7 +47,7 @@ def test_elliptic_loading_root_moment():
 
 def test_uniform_rectangular_wing_as_a_beam():
     # uniform running load w on a uniform cantilever: M(0) = w L² / 2, δ = w L⁴ / (8 E I)
-    L, w, E, I = 400.0, 1.2, 60e3, 1.1e5
+    L, w, E, I = 400.0, 1.2, 60e3, 1.1e5  # noqa: E741 (I: second moment of area)
     s = np.linspace(0, L, 4001)
     v, m = distributed_shear_and_moment(s, np.full_like(s, w))
     assert v[0] == pytest.approx(w * L) and m[0] == pytest.approx(w * L**2 / 2, rel=1e-6)
@@ -57,7 +57,7 @@ def test_uniform_rectangular_wing_as_a_beam():
 
 def test_uniform_cantilever_first_frequency():
     # exact: f = (1.8751² / 2π) √(E I / (m L⁴)); Rayleigh with the static shape is a little above
-    L, E, I, m = 800.0, 70e3, 2e4, 1289.6e-9 * 2700  # mm, MPa, mm⁴, kg/mm
+    L, E, I, m = 800.0, 70e3, 2e4, 1289.6e-9 * 2700  # noqa: E741 (I: second moment of area); mm, MPa, mm⁴, kg/mm
     s = np.linspace(0, L, 2001)
     f = first_bending_frequency(s, np.full_like(s, E * I), np.full_like(s, m))
     exact = 1.87510407**2 / (2 * math.pi) * math.sqrt(E * I * 1e3 / (m * L**4))

@@ -69,7 +69,8 @@ def test_volume_against_integral_of_the_naca_formula(tmp_path, write_spec):
     p = write_spec(wing_spec(te=0.0, mirror=False, section='naca = "0012"\nclosed_te = true',
                              stations=[dict(y=0, chord=200), dict(y=300, chord=150), dict(y=450, chord=60)]))
     res = check(p, tmp_path / "o", write_record=False)
-    c2 = lambda a, b, ca, cb: (b - a) * (ca**2 + ca * cb + cb**2) / 3  # ∫c² for linear c
+    def c2(a, b, ca, cb):  # ∫c² for linear c
+        return (b - a) * (ca**2 + ca * cb + cb**2) / 3
     exact = k * 0.12 * (c2(0, 300, 200, 150) + c2(300, 450, 150, 60)) / 1000
     r = measured(res, "w", "volume_cm3")
     assert r.step == pytest.approx(exact, rel=1e-3)
@@ -127,7 +128,6 @@ def test_scaled_step_is_caught_as_a_geometry_fault(tmp_path):
     from OCP.BRepBuilderAPI import BRepBuilderAPI_Transform
     from OCP.gp import gp_Pnt, gp_Trsf
 
-    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.cad.export import write_step
     from geomgen.cad.readback import read_step
 

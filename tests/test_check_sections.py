@@ -28,7 +28,8 @@ def test_check_measures_section_properties_on_the_step(tmp_path, write_spec):
     from geomgen.check.run import check
 
     area = NACA_AREA * 0.12 * 200.0**2
-    text = wing_spec(mirror=False, te=0.5, extra="[surface.laminate]\nthickness = 1.0\ncore = false\nmould = false\n") + (
+    laminate = "[surface.laminate]\nthickness = 1.0\ncore = false\nmould = false\n"
+    text = wing_spec(mirror=False, te=0.5, extra=laminate) + (
         f"[surface.expect]\nroot_area_mm2 = {{ value = {area:.1f}, tol = '1%' }}\n"
         "[[surface.check_at]]\ny = 200\ni_chord_mm4 = { value = 1.0, tol = 1.0 }\n")
     res = check(write_spec(text), tmp_path / "o", write_record=False)

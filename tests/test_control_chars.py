@@ -36,7 +36,8 @@ def test_name_line_control_characters_do_not_break_the_svg(tmp_path):
 
 
 @pytest.mark.parametrize("where,text", [
-    ("datum origin", lambda: wing_spec().replace('origin = "test origin"', 'origin = "near\\u0007 the \\u001b[2J mast"')),
+    ("datum origin",
+     lambda: wing_spec().replace('origin = "test origin"', 'origin = "near\\u0007 the \\u001b[2J mast"')),
     ("sections", lambda: wing_spec().replace("[sections.a]", '[sections."a\\u0000"]')),
     ("sections a file", lambda: wing_spec(section='file = "c\\u0085.dat"')),
     ("datum origin", lambda: wing_spec().replace('origin = "test origin"', 'origin = "left\\u202eright"')),

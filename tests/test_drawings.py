@@ -70,7 +70,7 @@ def test_template_dxf_reads_back_within_001_mm(write_spec, tmp_path):
     model = build_models(load_spec(spec))[0]
     doc = ezdxf.readfile(tmp_path / "out" / "drawings/t-w-templates.dxf")
     assert doc.header["$INSUNITS"] == 4  # millimetres
-    assert {"outline", "chord-line", "reference-mark", "labels"} <= {l.dxf.name for l in doc.layers}
+    assert {"outline", "chord-line", "reference-mark", "labels"} <= {layer.dxf.name for layer in doc.layers}
     groups = {name: list(g) for name, g in doc.groups}
     assert sorted(groups) == ["template y=0", "template y=150", "template y=300", "template y=75"]
     for name, ents in groups.items():

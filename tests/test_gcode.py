@@ -55,7 +55,8 @@ def faces(text, p, shop):
     xy, uv = mv[:, :2], mv[:, 2:]
     W, d, L = shop.machine_width_mm, shop.block_from_left_mm, p.y_b - p.y_a
     shift = np.array([float(v) for v in text.split("surface-frame point + [")[1].split("]")[0].split(",")])
-    at = lambda Y: xy + (uv - xy) * Y / W - shift
+    def at(Y):
+        return xy + (uv - xy) * Y / W - shift
     return at(d), at(d + L)
 
 

@@ -55,7 +55,8 @@ def test_sweep_and_dihedral_angles_equal_offsets():
 
 
 def test_mirror_symmetry():
-    m = model_of(wing_spec(incidence=2.0, stations=[dict(y=0, chord=200), dict(y=400, chord=90, x=30, z=-20, twist=-2)]))
+    m = model_of(wing_spec(incidence=2.0,
+                           stations=[dict(y=0, chord=200), dict(y=400, chord=90, x=30, z=-20, twist=-2)]))
     for y in (50.0, 250.0, 400.0):
         p, q = m.section_loop(y), m.section_loop(-y)
         np.testing.assert_allclose(q[:, [0, 2]], p[:, [0, 2]], atol=1e-12)

@@ -78,6 +78,6 @@ def test_error_lines_are_capped_with_a_count_of_the_rest(tmp_path):
     p = tmp_path / "s.toml"
     p.write_text("\n".join(f"junk{i} = 1" for i in range(500)) + "\n" + wing_spec())
     r = run("balance", p)
-    lines = [l for l in r.output.splitlines() if l.startswith("spec error:")]
+    lines = [ln for ln in r.output.splitlines() if ln.startswith("spec error:")]
     assert r.exit_code == 2 and len(lines) == 51 and "more not shown" in lines[-1]
     assert "500 problems" in r.output or "problems" in r.output

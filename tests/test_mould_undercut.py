@@ -65,7 +65,8 @@ def test_a_plane_through_a_symmetric_untwisted_section_has_no_undercut_and_a_rai
     low = section_undercut(poly, lambda X: np.full_like(X, -2.0), +1, columns=4000)
     from scipy.optimize import brentq
 
-    t = lambda u: c * 0.6 * (0.2969 * np.sqrt(u) - 0.126 * u - 0.3516 * u**2 + 0.2843 * u**3 - 0.1015 * u**4) - 2.0
+    def t(u):
+        return c * 0.6 * (0.2969 * np.sqrt(u) - 0.126 * u - 0.3516 * u**2 + 0.2843 * u**3 - 0.1015 * u**4) - 2.0
     x1, x2 = c * brentq(t, 1e-9, 0.3), c * brentq(t, 0.3, 1.0)  # where the lower surface is 2 mm below the chord
     assert low["leading_mm"] == pytest.approx(x1, abs=0.05)
     assert low["trailing_mm"] == pytest.approx(c - x2, abs=0.05)

@@ -66,7 +66,8 @@ def test_max_thickness_position():
 def thin_airfoil_design_cl(dy, m):
     """Ideal-angle lift coefficient cl_i = π A1, A1 = (2/π)∫ dy_c/dx cosθ dθ
     (thin-airfoil theory, Anderson, Fundamentals of Aerodynamics §4.8)."""
-    f = lambda th: dy(0.5 * (1 - np.cos(th))) * np.cos(th)
+    def f(th):
+        return dy(0.5 * (1 - np.cos(th))) * np.cos(th)
     a1 = 2 / np.pi * quad(f, 0, np.pi, limit=400, points=[np.arccos(1 - 2 * m)])[0]
     return np.pi * a1
 

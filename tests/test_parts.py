@@ -352,7 +352,8 @@ def read_3mf(path):
     out = []
     for obj in root.findall("m:resources/m:object", ns):
         v = np.array([[float(e.get(k)) for k in "xyz"] for e in obj.findall("m:mesh/m:vertices/m:vertex", ns)])
-        f = np.array([[int(e.get(k)) for k in ("v1", "v2", "v3")] for e in obj.findall("m:mesh/m:triangles/m:triangle", ns)])
+        f = np.array([[int(e.get(k)) for k in ("v1", "v2", "v3")]
+                      for e in obj.findall("m:mesh/m:triangles/m:triangle", ns)])
         out.append((v, f, root.get("unit")))
     return out
 

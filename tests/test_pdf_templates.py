@@ -6,7 +6,6 @@ from __future__ import annotations
 
 import re
 
-import numpy as np
 import pytest
 
 from geomgen.drawings.common import cuts_of
@@ -64,7 +63,8 @@ def test_templates_that_fit_get_a_page_each_with_a_ruler(tmp_path, paper):
     for b, p in zip(boxes, pages):
         size = sorted((b[2] / PT, b[3] / PT))
         assert size == pytest.approx(sorted((w, h)), abs=0.01)
-    rulers = [s for s in streams if any(abs(abs(x2 - x1) - 100.0 * PT) < 0.02 and y1 == y2 for x1, y1, x2, y2 in _segments(s))]
+    rulers = [s for s in streams
+              if any(abs(abs(x2 - x1) - 100.0 * PT) < 0.02 and y1 == y2 for x1, y1, x2, y2 in _segments(s))]
     assert len(rulers) == len(pages)
 
 

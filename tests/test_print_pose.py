@@ -88,7 +88,8 @@ def test_bed_margin_is_kept_by_the_automatic_split_and_cannot_eat_the_bed():
     from geomgen.spec.load import load_spec_text
 
     text = (ROOT / "specs/demo-stabilizer-shop.toml").read_text()
-    text = text.replace("build_volume = [180.0, 180.0, 180.0]", "build_volume = [120.0, 120.0, 120.0]\nbed_margin = 10.0")
+    text = text.replace("build_volume = [180.0, 180.0, 180.0]",
+                        "build_volume = [120.0, 120.0, 120.0]\nbed_margin = 10.0")
     text = text.replace("pin_diameter = 2.0", "enabled = false")  # thin outer joints: no room for pins
     assert "bed_margin = 10.0" in text
     (m,) = build_models(load_spec_text(text))

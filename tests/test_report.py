@@ -324,7 +324,8 @@ def test_centre_of_gravity_and_static_margin_shown(cg_data, cg_files):
 
 def test_failures_marked_by_word_and_not_only_by_colour(cg_data, cg_files):
     files = cg_files
-    html, md = files["report/lakeside-cruiser-report.html"].decode(), files["report/lakeside-cruiser-report.md"].decode()
+    html = files["report/lakeside-cruiser-report.html"].decode()
+    md = files["report/lakeside-cruiser-report.md"].decode()
     bad = [r for r in cg_data["check"]["rows"] if r["bad"]]
     assert {(r["part"], r["figure"]) for r in bad} == {("front-wing", "span_mm"), ("stabilizer", "mac_mm")}
     # the wing's span is off its build tolerance and its expected 800 ± 1 mm: fault and failure

@@ -51,7 +51,7 @@ def test_uniform_rectangular_wing_against_the_closed_form_beam():
 def test_lift_ahead_of_the_centroid_twists_the_leading_edge_up():
     m = rect(mirror=True)
     p = model_section_properties(m, 0.0)
-    n, L, F, arm = 1, 500.0, 50.0, 20.0
+    L, F, arm = 500.0, 50.0, 20.0
     at = np.array([L - 1e-6])
     x = p.centroid_x_mm - 0.25 * 150 - arm  # force line 20 mm ahead of the centroid
     strips = StripLoads("w", "wing", at, np.array([1.0]), np.array([F]), np.array([[x, L, 0.0]]),

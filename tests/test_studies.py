@@ -87,7 +87,8 @@ def test_family_hits_its_areas_and_scales_span_and_mac_by_its_rule(keep):
         # MAC is taken on the finished sections (their largest extent), whose 0.5 mm trailing
         # edge does not scale: a few 1e-5 of MAC, far inside the check's tolerance
         assert r["stabilizer:mac_mm"] == pytest.approx(f0.mac_mm * mac_f, rel=2e-4)
-    assert len(specs) == 2 and all(tomllib.loads(s)["name"].startswith("lakeside-cruiser-stabilizer-") for s in specs.values())
+    assert len(specs) == 2 and all(tomllib.loads(s)["name"].startswith("lakeside-cruiser-stabilizer-")
+                                   for s in specs.values())
 
 
 def test_a_failing_variant_is_reported_in_its_row_and_does_not_stop_the_others():

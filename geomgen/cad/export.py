@@ -11,11 +11,12 @@ from __future__ import annotations
 
 import errno
 import os
+import re
 from pathlib import Path
 
 import numpy as np
 
-from .. import defaults
+from .. import __version__, defaults
 from ..errors import ExportError
 
 
@@ -37,7 +38,8 @@ def write_step(parts, path: Path, options: dict) -> None:
 
     doc = TDocStd_Document(TCollection_ExtendedString("geomgen"))
     tool = XCAFDoc_DocumentTool.ShapeTool_s(doc.Main())
-    name = lambda label, text: TDataStd_Name.Set_s(label, TCollection_ExtendedString(text))
+    def name(label, text):
+        return TDataStd_Name.Set_s(label, TCollection_ExtendedString(text))
     if len(parts) == 1:
         name(tool.AddShape(parts[0].solid, False), parts[0].name)
     else:
@@ -89,8 +91,6 @@ def _fixed_header(writer, file_name: str) -> None:
     from OCP.APIHeaderSection import APIHeaderSection_MakeHeader
     from OCP.TCollection import TCollection_HAsciiString
 
-    from .. import __version__
-
     hdr = APIHeaderSection_MakeHeader(writer.ChangeWriter().Model())
     hdr.SetName(TCollection_HAsciiString(file_name))
     hdr.SetTimeStamp(TCollection_HAsciiString(STEP_TIME_STAMP))
@@ -103,8 +103,6 @@ def _fixed_header(writer, file_name: str) -> None:
 def _renumber_occurrences(path: Path) -> None:
     """Number assembly occurrences 1, 2, ... in file order (the writer keeps a process-wide
     counter, so a second build in one process would otherwise differ in these ids)."""
-    import re
-
     text = path.read_bytes()
     counter = iter(range(1, 1 << 30))
     text = re.sub(rb"NEXT_ASSEMBLY_USAGE_OCCURRENCE\('\d+'",
@@ -164,7 +162,10 @@ def _register() -> None:
     from ..outputs import register_format
 
     for fmt in EXPORTERS:  # looked up at write time, so the table stays the one place to change
-        register_format(fmt, lambda payload, path, fmt=fmt: EXPORTERS[fmt][1](payload[0], path, payload[1]))
+        def write(payload, path, fmt=fmt):
+            return EXPORTERS[fmt][1](payload[0], path, payload[1])
+
+        register_format(fmt, write)
 
 
 _register()

@@ -32,7 +32,8 @@ SEW_TOL = defaults.KERNEL_SEW_TOL_MM  # see defaults
 
 def _knots(t: np.ndarray):
     """Full knot vector -> OCP (knots, multiplicities) arrays."""
-    uniq, mult = [], []
+    uniq: list[float] = []
+    mult: list[int] = []
     for k in t:
         if uniq and abs(k - uniq[-1]) < 1e-12:
             mult[-1] += 1

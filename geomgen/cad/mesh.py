@@ -80,9 +80,9 @@ def mesh(shape, tol: float, what: str, angle: float = 0.5) -> tuple[np.ndarray, 
     Vg, F = np.concatenate(coords), np.concatenate(faces)
     # edge ends meet at the solid's vertices: match those (and only those) by position
     lab = np.arange(len(Vg))
-    ends = np.unique(ends)
-    for i, j in cKDTree(Vg[ends]).query_pairs(defaults.MESH_MERGE_TOL_MM):
-        a, b = lab[ends[i]], lab[ends[j]]
+    at = np.unique(ends)
+    for i, j in cKDTree(Vg[at]).query_pairs(defaults.MESH_MERGE_TOL_MM):
+        a, b = lab[at[i]], lab[at[j]]
         lab[lab == max(a, b)] = min(a, b)
     Vg, F = _collapse_short_edges(Vg, lab[F], min(defaults.MESH_SHORT_EDGE_MM, 0.05 * tol))
     if not closed(F):
@@ -122,7 +122,8 @@ def _collapse_short_edges(V, F, eps: float):
         shared = vf[a] & vf[b]
         if len(shared) != 2:
             continue
-        ring = lambda v: {int(x) for i in vf[v] for x in F[i]} - {v}
+        def ring(v):
+            return {int(x) for i in vf[v] for x in F[i]} - {v}
         opposite = {int(x) for i in shared for x in F[i]} - {a, b}
         if ring(a) & ring(b) != opposite:
             continue

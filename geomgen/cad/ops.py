@@ -21,8 +21,12 @@ from .. import defaults
 from ..errors import GeometryError
 from .loft import bspline_surface, volume_mm3
 
-_P = lambda v: gp_Pnt(*map(float, v))
-_D = lambda v: gp_Dir(*map(float, v))
+def _P(v):
+    return gp_Pnt(*map(float, v))
+
+
+def _D(v):
+    return gp_Dir(*map(float, v))
 
 
 def prepared(solid, what: str):
@@ -160,7 +164,8 @@ def cut_features(shape, tools, what: str, probes=None) -> tuple[object, float, f
 
     ``probes``: tool -> list of points (default: the tool's own probe)."""
     v0 = volume_mm3(shape)
-    tol = lambda v, rem: defaults.BOOLEAN_VOLUME_REL * v + defaults.BOOLEAN_REMOVED_REL * rem
+    def tol(v, rem):
+        return defaults.BOOLEAN_VOLUME_REL * v + defaults.BOOLEAN_REMOVED_REL * rem
     try:
         cur, removed, _ = _cut_steps(shape, v0, tools, what, probes, each=False)
         v1 = volume_mm3(cur)
@@ -177,7 +182,7 @@ def _cut_steps(shape, v0, tools, what, probes, each: bool):
     for label, group in features_of(tools):
         pts = [p for t in group for p in (probes(t) if probes else ([t.probe] if t.probe is not None else []))]
         pts = [p for p in pts if state(cur, p) == "in"]
-        err = None
+        err: GeometryError | None = None
         for turn in SEAM_TURNS:
             try:
                 tool = fuse([make_tool(t, turn) for t in group], f"{what}: {label}")
@@ -195,6 +200,7 @@ def _cut_steps(shape, v0, tools, what, probes, each: bool):
             except GeometryError as exc:
                 err, res = exc, None
         if res is None:
+            assert err is not None  # every seam turn failed
             raise err
         cur, v_cur, removed = res, v_res, removed + rem
     return cur, removed, v_cur
@@ -243,7 +249,8 @@ def plane_face(origin, normal, xdir, half: float):
 
 
 def skin_face(skin):
-    return BRepBuilderAPI_MakeFace(bspline_surface(skin.poles, skin.tu, skin.tv, skin.du, skin.dv), defaults.KERNEL_FACE_TOL_MM).Face()
+    surface = bspline_surface(skin.poles, skin.tu, skin.tv, skin.du, skin.dv)
+    return BRepBuilderAPI_MakeFace(surface, defaults.KERNEL_FACE_TOL_MM).Face()
 
 
 def prism(polygon, vec):

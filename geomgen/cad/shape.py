@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 from functools import cached_property
 
 from .. import defaults
+from ..geometry.surface import SurfaceModel
 from ..geometry.tessellate import surface_mesh
 from . import export  # noqa: F401  (registers the step/stl/3mf writers in the one writer table)
 
@@ -20,7 +21,7 @@ from . import export  # noqa: F401  (registers the step/stl/3mf writers in the o
 class SurfaceShape:
     """One lifting surface on its way to files: model, and (lazily) solid and meshes."""
 
-    model: object
+    model: SurfaceModel
     _meshes: dict = field(default_factory=dict, repr=False)
 
     @property

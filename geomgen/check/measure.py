@@ -4,6 +4,8 @@ only the span positions (from the root) where the caller wants chord and thickne
 
 from __future__ import annotations
 
+from typing import cast
+
 import numpy as np
 
 from ..geometry.chordline import chord_and_thickness, chord_line_of_points, chord_lines, datum_extent
@@ -92,7 +94,8 @@ def measure_stl(path, frame: Frame | None = None) -> dict:
     extents (wrong for a span shorter than the root's thickness) and the root is guessed."""
     import trimesh
 
-    mesh = trimesh.load(path, force="mesh", process=True)
+    # force="mesh": one Trimesh (the stubs return the Geometry base class)
+    mesh = cast(trimesh.Trimesh, trimesh.load(path, force="mesh", process=True))
     if mesh.is_empty:
         raise ValueError(f"{path}: no triangles")
     lo_b, hi_b = mesh.bounds

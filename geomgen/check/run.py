@@ -7,7 +7,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .. import CAUTION, __version__
-from ..errors import CheckFailed, ExportError
+from ..errors import CheckFailed, ExportError, GeomgenError
 from ..geometry.figures import intended_figures
 from ..geometry.slices import Frame
 from ..outputs import Output, output_name, output_state, stale_outputs
@@ -63,7 +63,7 @@ def check(project, out_dir=None, *, rebuild: bool = False, stl_tol: float | None
     report in the same run does not measure again. Raises SpecError / GeometryError /
     CheckFailed (a file that cannot be read back); returns the result whatever the verdicts
     (see :attr:`CheckResult.ok`)."""
-    opts = {"allow_outside_files": allow_outside_files}
+    opts: dict[str, object] = {"allow_outside_files": allow_outside_files}
     if stl_tol is not None:
         opts["stl_tol"] = stl_tol
     project = Project.of(project, out_dir, **opts)
@@ -143,7 +143,6 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
                        "section_properties": section_seconds}, project.stl_tol)
     res.modified, res.stale, res.notes = modified, stale, notes
     if project.spec.flight is not None:
-        from ..errors import GeomgenError
         from ..hydro import balance_of
 
         try:

@@ -27,7 +27,7 @@ def _tolerances(p: SectionProps, points2d: np.ndarray) -> dict:
     h = max(float(p.w_chord_mm3 and p.i_chord_mm4 / p.w_chord_mm3), 1e-9)  # extreme fibre distance
     half_chord = 0.5 * p.chord_mm
     t_i = d * perim * h * h
-    tol = {"area": d * perim, "i_chord": t_i, "i_normal": d * perim * half_chord ** 2,
+    tol: dict[str, float | None] = {"area": d * perim, "i_chord": t_i, "i_normal": d * perim * half_chord ** 2,
            "w_chord": t_i / h + p.i_chord_mm4 * d / h ** 2}
     for k in ("j_solid", "j_shell"):
         v = getattr(p, k + "_mm4")

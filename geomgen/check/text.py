@@ -37,8 +37,8 @@ def summary_lines(res) -> list[str]:
         vals = ", ".join(f"{k} {getattr(r, k.lower()):.4f}" for k in r.fault)
         lines.append(f'GEOMETRY FAULT: surface "{r.part}" {r.label}: intended {r.intended:.4f} {r.unit}, '
                      f"measured {vals} {r.unit} (build tolerance {r.tol_step:.4f} STEP, "
-                     f"{(r.tol_stl if r.tol_stl is not None else r.tol_step):.4f} STL). The written file does not match "
-                     "the spec: do not machine or print it; rebuild and check again.")
+                     f"{(r.tol_stl if r.tol_stl is not None else r.tol_step):.4f} STL). "
+                     "The written file does not match the spec: do not machine or print it; rebuild and check again.")
     for r in res.failures:
         lines.append(f'EXPECTATION FAILED: surface "{r.part}" {r.label}: expected {r.expected:g} ± '
                      f"{r.expected_tol:.4g} {r.unit}, measured {r.measured:.4f} {r.unit}")
@@ -88,7 +88,9 @@ def format_terminal(res) -> str:
     header, rows = _rows(res)
     widths = [max(len(str(x)) for x in col) for col in zip(header, *rows)]
     right = {3, 4, 5, 6, 7}
-    fmt = lambda row: "  ".join(str(c).rjust(w) if i in right else str(c).ljust(w) for i, (c, w) in enumerate(zip(row, widths)))
+    def fmt(row):
+        return "  ".join(str(c).rjust(w) if i in right else str(c).ljust(w)
+                         for i, (c, w) in enumerate(zip(row, widths)))
     out = [f"geomgen check '{res.spec_name}': files in {res.out_dir} "
            f"({'built now' if res.built else 'fresh outputs reused'}); STEP measured through the kernel, "
            f"STL through trimesh (chordal tolerance {res.stl_tol:g} mm)", "", fmt(header),

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import json
+import os
 import sys
 from pathlib import Path
 
@@ -44,8 +46,6 @@ def check(spec, out_dir, rebuild, stl_tol, as_json):
     Exit 0 all agree and pass; 1 an expectation failed or a written file departs from the
     intended geometry (a geometry fault); 2 spec error; 3 geometry error.
     """
-    import json
-
     from ..check.run import check as do_check
     from ..check.text import format_terminal
 
@@ -69,8 +69,6 @@ def balance(spec, out_dir, cg_x, sideslip, as_json):
     Trims at the speeds of the spec's [flight] table: front wing and stabilizer lift, the
     net centre of pressure and where the weight must act, relative to the mast.
     """
-    import json
-
     from ..hydro import balance_of, format_hydro
 
     project = _project(spec, out_dir)
@@ -114,8 +112,6 @@ def loads(spec, speed_kmh, load_factor, material, e_gpa, g_gpa, density, allowab
     shear, bending moment, stress, tip deflection and twist of wings and stabilizers at a
     stated speed and load factor; mast deflection, stress and torsional stiffness per side
     force. Writes the summary and JSON into the output folder's report/."""
-    import json
-
     from ..strength import format_loads, loads as do_loads, material_of, write_loads
 
     mat = material_of(material, e_gpa, g_gpa, density)
@@ -185,8 +181,6 @@ def parts(spec, out_dir):
 @main.command()
 def schema():
     """Print the JSON Schema of the spec (for editors)."""
-    import json
-
     from ..spec.model import Spec
 
     click.echo(json.dumps(Spec.model_json_schema(), indent=2))
@@ -196,8 +190,6 @@ def schema():
 @click.argument("path", type=click.Path(dir_okay=False), default="foil.toml")
 def new(path):
     """Write a commented starter spec to PATH (default foil.toml) that builds as written."""
-    import os
-
     from ..starter import STARTER
 
     p = Path(path)

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import json
 import sys
 
 import click
@@ -39,8 +40,6 @@ class _Bar:
 
 
 def _study_done(project, table, out_dir, as_json, pairs=(), specs=None):
-    import json
-
     from ..studies import study_outputs, to_json, to_text
 
     click.echo(json.dumps(to_json(table), indent=1) if as_json else to_text(table))

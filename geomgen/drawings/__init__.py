@@ -34,7 +34,7 @@ class SurfaceSummary:
     panels: int
     kerf_mm: float
     worst_ruled_mm: float  # largest mid-panel deviation of a ruled hot-wire cut, mm
-    warnings: list = None  # panels whose straight cut strays beyond cut_tol_mm
+    warnings: list | None = None  # panels whose straight cut strays beyond cut_tol_mm
 
 
 class ShopFiles(list):
@@ -93,7 +93,8 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
         side = upper_side(m)
         common = dict(spec_name=set_name, model_name=m.name, side=side)
         layout = dict(spacing=shop.template_spacing_mm, height=shop.label_height_mm)
-        name = lambda *w, suffix: output_name(set_name, m.name, *w, suffix=suffix, folder="drawings")
+        def name(*w, suffix):
+            return output_name(set_name, m.name, *w, suffix=suffix, folder="drawings")
         outputs += [
             Output(name("templates", suffix=".dxf"), "file",
                    lambda p, cuts=cuts, common=common, layout=layout:
@@ -135,7 +136,8 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
     res.extend(project.out_dir / o.name for o in outputs)
     res.seconds = time.perf_counter() - t0
     outputs.append(Output(output_name(set_name, "drawings", suffix=".txt"), "text",
-                          lambda: format_shop_summary(res, for_file=True), "what the drawings command wrote, per surface"))
+                          lambda: format_shop_summary(res, for_file=True),
+                          "what the drawings command wrote, per surface"))
     done = project.write("drawings", outputs, say)
     res[:] = done.files  # the summary file too
     res.notes = done.notes()

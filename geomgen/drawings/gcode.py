@@ -14,6 +14,8 @@ below the foremost and lowest tower position.
 
 from __future__ import annotations
 
+import re
+
 import numpy as np
 
 from .. import CAUTION, __version__
@@ -58,8 +60,9 @@ def panel_gcode(p, shop, *, spec_name: str, side: str) -> tuple[str, dict]:
              f"( the wire at a block face, machine units = surface-frame point + [{shift[0]:.3f}, {shift[1]:.3f}] )",
              f"( straight cut vs the surface halfway: {p.mid_deviation:.3f} mm, tolerance {shop.cut_tol_mm:g} mm )"]
     if info["flagged"]:
-        lines.append(f"( WARNING: this panel's straight cut strays {p.mid_deviation:.2f} mm from the surface, more than "
-                     f"{shop.cut_tol_mm:g} mm: add a cut position at y = {0.5 * (p.y_a + p.y_b):g} in hotwire_cuts )")
+        lines.append(f"( WARNING: this panel's straight cut strays {p.mid_deviation:.2f} mm from the surface, "
+                     f"more than {shop.cut_tol_mm:g} mm: add a cut position at y = {0.5 * (p.y_a + p.y_b):g} "
+                     "in hotwire_cuts )")
     lines = [ln if ln.count("(") == 1 else "( " + ln[2:-2].replace("(", "[").replace(")", "]") + " )" for ln in lines]
     lines += ["G21 (mm)", "G90 (absolute)", f"G0 X{xy[0, 0]:.3f} Y{xy[0, 1]:.3f} U{uv[0, 0]:.3f} V{uv[0, 1]:.3f}",
               f"G1 F{shop.feed_mm_min:g}"]
@@ -79,8 +82,6 @@ def write_panel_gcode(p, path, *, shop, spec_name: str, side: str) -> None:
 
 def read_moves(text: str) -> np.ndarray:
     """(n, 4) X Y U V of every G0/G1 move with coordinates (a reader for tests)."""
-    import re
-
     out = []
     for line in text.splitlines():
         if line.startswith(("G0 ", "G1 ")) and "X" in line:

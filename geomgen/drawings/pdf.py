@@ -80,6 +80,7 @@ def layout(cuts: list[Cut], side: str, height: float, paper: str, overlap: float
             ny = 1 if h <= uh else math.ceil((h - overlap) / (uh - overlap))
             if best is None or nx * ny < best[0]:
                 best = (nx * ny, orient, nx, ny, uw, uh, W)
+        assert best is not None  # two orientations tried
         _, orient, nx, ny, uw, uh, W = best
         sx = (w - overlap) / nx + overlap if nx > 1 else w  # tiles share the template evenly
         sy = (h - overlap) / ny + overlap if ny > 1 else h
@@ -123,12 +124,16 @@ def write_templates_pdf(cuts: list[Cut], path, *, spec_name: str, model_name: st
         H = pdf.h
         x0w, ztw, ww, hw = pg.window
         ax, ay = pg.at
-        px = lambda x: ax + (x - x0w)  # chord frame -> page
-        py = lambda z: ay + (ztw - z)
+        def px(x):  # chord frame -> page
+            return ax + (x - x0w)
+        def py(z):
+            return ay + (ztw - z)
         pdf.set_font("helvetica", size=pt)
         pdf.set_text_color(0)
-        tile = "" if pg.tiles == (1, 1) else f" - tile row {pg.tile[0]} of {pg.tiles[0]}, column {pg.tile[1]} of {pg.tiles[1]}"
-        pdf.text(BORDER_MM, BORDER_MM + height, _latin(f"{title}; template at y = {c.y:g} mm{tile}; page {n} of {len(pages)}"))
+        tile = ("" if pg.tiles == (1, 1)
+                else f" - tile row {pg.tile[0]} of {pg.tiles[0]}, column {pg.tile[1]} of {pg.tiles[1]}")
+        pdf.text(BORDER_MM, BORDER_MM + height,
+                 _latin(f"{title}; template at y = {c.y:g} mm{tile}; page {n} of {len(pages)}"))
         with pdf.rect_clip(ax, ay, ww, hw):
             pdf.set_line_width(0.25)
             pdf.set_draw_color(0)

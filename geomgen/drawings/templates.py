@@ -114,7 +114,8 @@ def write_templates_dxf(cuts: list[Cut], path, *, spec_name: str, model_name: st
     slots = stack(cuts, spacing=spacing, height=height, side=side, deg=" deg")
     width = max(float(c.outline[:, 0].max()) for c in cuts)
     notes = sheet_notes(spec_name, model_name, side)
-    lines = [notes[0]] + wrap(notes[1], max(width, 120.0), height) + wrap("CAUTION: " + CAUTION, max(width, 120.0), height)
+    lines = ([notes[0]] + wrap(notes[1], max(width, 120.0), height)
+             + wrap("CAUTION: " + CAUTION, max(width, 120.0), height))
     for i, text in enumerate(lines):
         msp.add_text(text, height=height, dxfattribs={"layer": "labels"}).set_placement(
             (0.0, LABEL_GAP_MM + (len(lines) - 1 - i) * line_step(height)))

@@ -119,7 +119,6 @@ def chord_line_of_points(points: np.ndarray, aft: np.ndarray, le_hint: np.ndarra
     e = np.asarray(aft, float) / np.linalg.norm(aft)
     c = p - p.mean(axis=0)
     nrm = np.linalg.svd(c, full_matrices=False)[2][-1]  # normal of the slice's plane
-    te = None
     for _ in range(2):
         f = np.cross(nrm, e)
         f /= np.linalg.norm(f)
@@ -143,6 +142,7 @@ def chord_line_of_points(points: np.ndarray, aft: np.ndarray, le_hint: np.ndarra
                     i = int(np.argmin(dist))
                     if best is None or dist[i] < best[0]:
                         best = (dist[i], p[i])
+                assert best is not None  # two candidates tried
                 te = 0.5 * (pa + best[1])
         else:
             best = None

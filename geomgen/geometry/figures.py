@@ -127,8 +127,8 @@ def intended_figures(model) -> Figures:
     (le0, c0, _, _), (le1, c1, _, _) = outline_at(model, y0), outline_at(model, y1)
     sweep = math.degrees(math.atan2((le1 + c1 / 4) - (le0 + c0 / 4), y1 - y0))
     root, tip = (section_figures(model, v)["chord_mm"] for v in (y0, y1))
-    return Figures(span_mm=pf.span_mm, projected_area_cm2=pf.projected_area_cm2, aspect_ratio=pf.aspect_ratio, mac_mm=mac,
-                   mac_y_mm=pf.mac_y_mm, mac_le_x_mm=x_le, mac_qc_x_mm=x_le + mac / 4, root_chord_mm=root,
+    return Figures(span_mm=pf.span_mm, projected_area_cm2=pf.projected_area_cm2, aspect_ratio=pf.aspect_ratio,
+                   mac_mm=mac, mac_y_mm=pf.mac_y_mm, mac_le_x_mm=x_le, mac_qc_x_mm=x_le + mac / 4, root_chord_mm=root,
                    tip_chord_mm=tip, taper_ratio=tip / root, sweep_qc_deg=sweep, volume_cm3=vol / 1000.0,
                    wetted_area_cm2=surface_area(model) / 100.0, centroid_mm=tuple(centroid(model)),
                    datum_area_cm2=pf.datum_area_cm2, datum_mac_mm=pf.datum_mac_mm)

@@ -40,10 +40,10 @@ def _station_key(st) -> tuple:
     return (st.section, st.blend.section, st.blend.fraction) if st.blend else (st.section, None, 0.0)
 
 
-def _check_trailing_edge(model: SurfaceModel, where) -> list[str]:
+def _check_trailing_edge(model: SurfaceModel, where) -> list[tuple[float, float, float]]:
     """Refuse a trailing edge thicker than half the section's thickness where the ramp starts."""
     te = model.te_thickness
-    out = []
+    out: list[tuple[float, float, float]] = []
     if te == 0:
         return out
     for y in where:
@@ -199,9 +199,9 @@ def build_models(spec, source: str | Path = "<spec>") -> list[SurfaceModel]:
             continue
         models.append(model)
     for i, sf in enumerate(spec.surface):
-        model = next((m for m in models if m.spec is sf), None)
-        if model is not None:
-            problems += [f'{src}: surface[{i}] "{sf.name}" {p}' for p in check_at_problems(model)]
+        found = next((m for m in models if m.spec is sf), None)
+        if found is not None:
+            problems += [f'{src}: surface[{i}] "{sf.name}" {p}' for p in check_at_problems(found)]
     for model in models:
         mids = [0.5 * (a + b) for seg in model.loft_y() for a, b in zip(seg[:-1], seg[1:])]
         where = sorted({float(abs(v)) for seg in model.loft_y() for v in seg} | {abs(v) for v in mids})

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Callable, Optional
 
 import numpy as np
 
@@ -45,8 +46,10 @@ class Frame:
     origin: float | None = None
     chord_dir: tuple = (1.0, 0.0, 0.0)
     ref_point: tuple = (0.0, 0.0, 0.0)
-    le_at: object = None  # callable: datum span coordinates (n,) -> design leading edges (n, 3)
-    te_at: object = None  # callable: datum span coordinates (n,) -> design trailing-edge corners (n, 2, 3)
+    #: datum span coordinates (n,) -> design leading edges (n, 3)
+    le_at: Optional[Callable[[np.ndarray], np.ndarray]] = None
+    #: datum span coordinates (n,) -> design trailing-edge corners (n, 2, 3)
+    te_at: Optional[Callable[[np.ndarray], np.ndarray]] = None
 
     def ends(self, lo: float, hi: float) -> tuple[float, float]:
         """(root, tip) span coordinates on a part measured from ``lo`` to ``hi``."""

@@ -50,6 +50,8 @@ class SurfaceModel:
         Planform section key -> unit-chord :class:`Section` (before trailing-edge finishing).
     """
 
+    named_sections: dict  # the spec's sections by name (set by build_models)
+
     def __init__(self, spec, planform: Planform, sections: dict):
         self.spec = spec
         self.name = spec.name

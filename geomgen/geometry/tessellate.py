@@ -167,7 +167,7 @@ def _orient(verts: np.ndarray, faces: np.ndarray) -> np.ndarray:
     order = np.lexsort((key[:, 1], key[:, 0]))
     ks, os_, es = key[order], owner[order], edges[order]
     same = np.all(ks[1:] == ks[:-1], axis=1)
-    nbr = [[] for _ in range(n)]
+    nbr: list[list[tuple[int, bool]]] = [[] for _ in range(n)]  # (neighbour, same winding)
     for k in np.nonzero(same)[0]:
         f1, f2 = os_[k], os_[k + 1]
         agree = es[k][0] != es[k + 1][0]  # opposite traversal = consistent

@@ -11,5 +11,6 @@ from .results import (Cavitation, FreeSurface, HydroResult, Lateral, Loading, Pe
 from .whatif import shim_trim_change
 from .water import G, ITTC_2011, Water, water
 
-__all__ = ["shim_trim_change", "analyse", "balance_of", "analyse_spec", "neutral_point", "format_hydro", "HydroResult", "SurfaceHydro", "TrimPoint", "Takeoff", "Lateral",
-           "Loading", "Water", "water", "G", "ITTC_2011", "FreeSurface", "Cavitation", "Performance", "Stance"]
+__all__ = ["shim_trim_change", "analyse", "balance_of", "analyse_spec", "neutral_point", "format_hydro", "HydroResult",
+           "SurfaceHydro", "TrimPoint", "Takeoff", "Lateral", "Loading", "Water", "water", "G", "ITTC_2011",
+           "FreeSurface", "Cavitation", "Performance", "Stance"]

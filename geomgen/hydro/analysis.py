@@ -24,6 +24,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from .. import CAUTION
+from ..errors import SpecError
 from ..geometry.figures import PlanformFigures, planform_figures
 from ..spec.flight import DEFAULT_CHORD_PANELS, DEFAULT_CL_MAX, DEFAULT_SPAN_PANELS
 from .cavitation import cavitation
@@ -143,8 +144,6 @@ def _lateral(flow, ctx, alpha: float) -> Lateral:
 
 def pitch_surfaces(models) -> list:
     """Horizontal wings and stabilizers: the surfaces of the pitch balance (SpecError if none)."""
-    from ..errors import SpecError
-
     lifting = [m for m in models if m.role in PITCH_ROLES and m.orientation == "horizontal"]
     if not lifting:
         raise SpecError("surface: the balance needs at least one horizontal surface with role 'wing' or 'stabilizer'")
@@ -237,7 +236,8 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
         panels=dict(span_panels_per_half=ns, chord_panels=nc, total=lat.n,
                     surfaces=[m.name for m in pitch_models]),
         alpha_ref_deg=alpha_deg, cl=lift / qs, lift_slope_per_rad=dl / qs, lift_slope_per_deg=dl / qs * DEG,
-        zero_lift_attitude_deg=math.degrees(solve_attitude(lambda al: float(flow.loads(al, ctx.ref)["lift"].sum()), 0.0)),
+        zero_lift_attitude_deg=math.degrees(
+            solve_attitude(lambda al: float(flow.loads(al, ctx.ref)["lift"].sum()), 0.0)),
         cm=float(ld["moment"][:, 1].sum()) / (qs * c), cm_alpha_per_rad=dm / (qs * c),
         cm_alpha_per_deg=dm / (qs * c) * DEG, neutral_point_x_mm=x_np,
         neutral_point_from_mast_mm=x_np - ctx.mast_x if ctx.mast_x is not None else None,
@@ -291,6 +291,7 @@ def _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc):
         return trim_point(flow, ctx, v, fl.mass_kg, w)
 
     def lift_of(d):
+        assert stab is not None  # called only with a stabilizer
         if d == 0.0:
             return trim_at(cruise).lift_n.get(stab.name, math.nan)
         changed = [m.with_incidence(m.spec.incidence + d) if m is stab else m for m in pitch_models]
@@ -326,7 +327,6 @@ def analyse_spec(spec, **kwargs) -> HydroResult:
     **kwargs
         Passed to :func:`analyse` (panel counts, ``alpha_deg``, ``cg_x_mm``, ...).
     """
-    from ..errors import SpecError
     from ..geometry.model import build_models
 
     models = build_models(spec)
@@ -342,8 +342,6 @@ def balance_of(project, **kwargs) -> HydroResult:
     once per run and keyword set (``balance``, ``check``, ``report`` and ``parts`` share it).
 
     Raises SpecError naming the spec file when the set cannot be balanced."""
-    from ..errors import SpecError
-
     def solve() -> HydroResult:
         models = project.models  # its own problems already name the file and field
         try:

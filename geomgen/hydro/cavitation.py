@@ -88,7 +88,8 @@ def _vertical(model, water, water_z):
         k, depth = int(np.argmax(z)), (water_z - float(z.max())) * 1e-3
     f = section_flow(model.base_section(abs(ys[k]) if model.mirror else ys[k]))
     cp, x, up = f.cp_min(0.0)
-    v = math.sqrt((P_ATM + water.density * G * depth - water.vapour_pa) / (0.5 * water.density * -cp)) if cp < 0 else math.nan
+    v = (math.sqrt((P_ATM + water.density * G * depth - water.vapour_pa) / (0.5 * water.density * -cp))
+         if cp < 0 else math.nan)
     return dict(name=model.name, role=model.role, onset_ms=v, onset_kmh=v / KMH, y_mm=float(ys[k]), x_over_c=x,
                 side="either side (zero lift)", cl=0.0, cp_min=cp, depth_mm=depth * 1e3,
                 where="at the still-water line" if depth == 0.0 and water_z is not None else
@@ -137,7 +138,8 @@ def cavitation(flow, ctx, all_models, water, water_z, mass_kg: float, v_start_ms
     out = []
     for s in range(n_surf):
         sel = surf_of == s
-        prev, found = None, None
+        prev: float | None = None
+        found: tuple[float | None, float] | None = None
         for v, st in states:
             if st is None:
                 continue

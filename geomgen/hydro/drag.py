@@ -152,7 +152,8 @@ def performance(flow, ctx, all_models, water, water_z, mass_kg, speeds_kmh, take
     hi = cavitation_kmh if cavitation_kmh is not None and math.isfinite(cavitation_kmh) else max(speeds_kmh) * 1.5
     sweep = [p for p in (point(flow, ctx, strips, all_models, water, water_z, mass_kg, float(v))
                          for v in np.linspace(lo, max(hi, lo + 1.0), 25)) if p]
-    notes = [f"takeoff from a section cl max of {takeoff.cl_max:g} ({'given' if cl_max_given else 'default, common practice, no source'})"
+    notes = [f"takeoff from a section cl max of {takeoff.cl_max:g} "
+             f"({'given' if cl_max_given else 'default, common practice, no source'})"
              if takeoff is not None else "no takeoff estimate"]
     return Performance(points=pts, sweep=sweep, takeoff_kmh=lo if takeoff is not None else math.nan,
                        first_cavitation_kmh=cavitation_kmh if cavitation_kmh is not None else math.nan,

@@ -17,8 +17,9 @@ from .results import FreeSurface
 from .water import G
 
 LIMITS = ("free surface by images, high-Froude-number limit: no wave making (fair only when the depth Froude "
-          "number V/√(g·depth) is large, poor at low speed just after takeoff), no ventilation (air drawn down the mast or "
-          "onto a foil near the surface), no spray, a flat still surface (no swell, no chop)")
+          "number V/√(g·depth) is large, poor at low speed just after takeoff), no ventilation "
+          "(air drawn down the mast or onto a foil near the surface), no spray, a flat still surface "
+          "(no swell, no chop)")
 
 
 def mast_top_z(mast) -> float:
@@ -82,7 +83,8 @@ def compare(models, res, deep, water_z: float, how: str) -> FreeSurface:
     trim = []
     h_ref = per[0]["depth_root_mm"] * 1e-3
     for t, u in zip(res.trim, deep.trim):
-        trim.append(dict(speed_kmh=t.speed_kmh, froude_depth=t.speed_ms / math.sqrt(G * h_ref) if h_ref > 0 else math.nan,
+        trim.append(dict(speed_kmh=t.speed_kmh,
+                         froude_depth=t.speed_ms / math.sqrt(G * h_ref) if h_ref > 0 else math.nan,
                          attitude_change_deg=t.attitude_deg - u.attitude_deg,
                          lift_change_n={k: t.lift_n.get(k, math.nan) - u.lift_n.get(k, math.nan) for k in t.lift_n},
                          cp_shift_mm=t.cp_x_mm - u.cp_x_mm, induced_drag_change_n=t.induced_drag_n - u.induced_drag_n))

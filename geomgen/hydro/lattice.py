@@ -24,11 +24,12 @@ flat or parabolic mean line on uniform panels).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
 from .. import defaults
+from ..errors import SpecError
 
 #: Chord-fraction step of the finite difference for the camber-surface tangent.
 TANGENT_STEP = 1e-3
@@ -81,26 +82,26 @@ class Lattice:
     chord_panels: list
     span_panels: list
 
-    t_mid: np.ndarray = None
+    t_mid: np.ndarray | None = None
     """(N,) fraction along A–B of the collocation station."""
-    core: np.ndarray = None
+    core: np.ndarray | None = None
     """(N,) core radius the panel's vortices show to other surfaces, mm (see ``vortex``)."""
-    edge_from: np.ndarray = None
-    edge_to: np.ndarray = None
+    edge_from: np.ndarray | None = None
+    edge_to: np.ndarray | None = None
     """(E, 3) pieces of the strip edges over the surface, edge line by edge line, row by row:
     from a row's bound-vortex end to the next row's (the trailing edge after the last row).
     The trailing legs follow the surface along them to the trailing edge."""
-    edge_a: np.ndarray = None
-    edge_b: np.ndarray = None
+    edge_a: np.ndarray | None = None
+    edge_b: np.ndarray | None = None
     """(N,) int, the edge piece at each panel's A end and B end (strips share their edges)."""
-    edge_surface: np.ndarray = None
+    edge_surface: np.ndarray | None = None
     """(E,) int, surface index of each edge piece."""
-    edge_width: np.ndarray = None
-    edge_core: np.ndarray = None
+    edge_width: np.ndarray | None = None
+    edge_core: np.ndarray | None = None
     """(E,) strip width and cross-surface core radius of each edge piece (the larger of the
     two strips that share it), mm."""
-    A_te: np.ndarray = None
-    B_te: np.ndarray = None
+    A_te: np.ndarray | None = None
+    B_te: np.ndarray | None = None
     """(N, 3) the strip edges' trailing-edge points, where the free legs start along +x."""
     water_z: float | None = None
     """Datum z of the still-water surface, mm; None: deep water (no images). See
@@ -119,6 +120,7 @@ class Lattice:
         where the Trefftz-plane wash is taken; with cosine spacing the arithmetic midpoint
         gave a span efficiency that crept down to 1 only as 1/n.
         """
+        assert self.t_mid is not None  # set by build_lattice
         return self.A + self.t_mid[:, None] * (self.B - self.A)
 
 
@@ -199,8 +201,6 @@ def check_memory(models, span_panels: int, chord_panels: int,
                  budget: int = defaults.LATTICE_MEMORY_BUDGET_BYTES) -> None:
     """Refuse (SpecError naming the [flight] panel counts) a lattice over the memory budget,
     before anything is allocated."""
-    from ..errors import SpecError
-
     n = panel_count(models, span_panels, chord_panels)
     need = memory_needed(n)
     if need > budget:
@@ -272,6 +272,7 @@ def image_lattice(lat: Lattice) -> Lattice:
     same way as the foil's: the free surface acts like a biplane partner and takes lift away,
     where a wall adds it.
     """
+    assert lat.water_z is not None, "image_lattice needs a water surface"
     zw = float(lat.water_z)
 
     def refl(p):
@@ -279,8 +280,7 @@ def image_lattice(lat: Lattice) -> Lattice:
         q[..., 2] = 2.0 * zw - q[..., 2]
         return q
 
-    from dataclasses import replace
-
+    assert lat.edge_surface is not None  # set by build_lattice
     return replace(lat, A=refl(lat.A), B=refl(lat.B), colloc=refl(lat.colloc), edge_from=refl(lat.edge_from),
                    edge_to=refl(lat.edge_to), A_te=refl(lat.A_te), B_te=refl(lat.B_te),
                    surface=lat.surface + IMAGE_SURFACE, edge_surface=lat.edge_surface + IMAGE_SURFACE,

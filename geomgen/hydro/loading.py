@@ -11,6 +11,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..errors import SpecError
 from .analysis import _context, pitch_surfaces
 from .lattice import build_lattice
 from .solve import Flow, lift_axis, solve_attitude
@@ -45,8 +46,6 @@ class Condition:
 def loading_at(models, flight, speed_kmh: float, load_factor: float) -> tuple[Condition, list[StripLoads]]:
     """Strip loads of every wing and stabilizer where the set lifts ``load_factor`` times the
     weight of ``flight.mass_kg`` at ``speed_kmh`` (linear lattice: no stall)."""
-    from ..errors import SpecError
-
     lifting = pitch_surfaces(models)
     ns, nc = flight.span_panels, flight.chord_panels
     ctx = _context(lifting, models)

@@ -149,8 +149,8 @@ def solve_many(node_sets) -> list[SectionFlow]:
     separate solves were slowed 10x by BLAS threads on a busy machine)."""
     node_sets = [np.asarray(n, float) for n in node_sets]
     systems = [_system(n) for n in node_sets]
-    out = [None] * len(node_sets)
-    sizes = {}
+    out: list = [None] * len(node_sets)
+    sizes: dict[int, list[int]] = {}
     for i, n in enumerate(node_sets):
         sizes.setdefault(len(n), []).append(i)
     for idx in sizes.values():

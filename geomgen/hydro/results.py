@@ -30,7 +30,7 @@ def _clean(v):
 class _Record:
     def as_dict(self) -> dict:
         """Plain dict for JSON (nan becomes None)."""
-        return _clean(asdict(self))
+        return _clean(asdict(self))  # type: ignore[call-overload]  # every subclass is a dataclass
 
 
 @dataclass

@@ -51,6 +51,8 @@ class Flow:
         Panels kept (a surface alone); default all.
     """
 
+    _mats: tuple  # (AIC, W, T, ds) of the full lattice, set by :meth:`solve`
+
     def __init__(self, lat, AIC, W, T, ds, idx=None):
         idx = np.arange(lat.n) if idx is None else np.asarray(idx)
         ix = np.ix_(idx, idx)

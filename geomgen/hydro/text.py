@@ -62,16 +62,7 @@ def format_hydro(r) -> str:
                f"zero-lift attitude {_f(r.zero_lift_attitude_deg, '.2f')}°, Cm {r.cm:.4f}, "
                f"Cmα {r.cm_alpha_per_rad:.3f} /rad ({r.cm_alpha_per_deg:.5f} /deg), CDi {r.cdi:.5f}, "
                f"e {_f(r.span_efficiency, '.3f')}")
-    np_line = (f"Neutral point: x = {r.neutral_point_x_mm:.1f} mm, {r.neutral_point_pct_mac:.1f} % MAC "
-               f"from the front wing's MAC leading edge")
-    if r.neutral_point_from_mast_mm is not None:
-        d = r.neutral_point_from_mast_mm
-        np_line += (f"; {abs(d):.1f} mm {'aft of' if d >= 0 else 'ahead of'} the mast reference "
-                    f"({r.neutral_point_from_mast_pct_mac:+.1f} % MAC)")
-    else:
-        d = r.neutral_point_x_mm
-        np_line += f"; {abs(d):.1f} mm {'aft of' if d >= 0 else 'ahead of'} the datum origin (no mast)"
-    out.append(np_line)
+    out.append(neutral_point_line(r))
     if r.downwash_gradient is not None:
         out.append(f"Downwash gradient at the stabilizer (1 − CLα in set / CLα alone): {r.downwash_gradient:.3f}")
     if r.static_margin_pct is not None:
@@ -114,23 +105,37 @@ def format_hydro(r) -> str:
         out.append(f"Estimated takeoff: {_f(to.speed_kmh, '.1f')} km/h ({_f(to.speed_ms, '.2f')} m/s) at attitude "
                    f"{_f(to.attitude_deg, '.1f')}°, where the front wing's section cl first reaches {to.cl_max:g} "
                    f"(at |y| = {_f(to.limiting_y_mm, '.0f')} mm)")
-    if r.lateral is not None:
-        la = r.lateral
-        out += ["", f"Sideslip (masts and fins in the lattice): CYβ {la.side_force_per_deg:.5f} /deg, "
-                    f"Clβ {la.roll_moment_per_deg:.5f} /deg, Cnβ {la.yaw_moment_per_deg:.5f} /deg "
-                    "(right-hand about datum x and z, front-wing S and span)"]
-        out += ["  " + ", ".join(f"{k} {v:.5f}" for k, v in la.side_force_slope_per_deg.items()) + " (CYβ share /deg)"]
-    if r.free_surface is not None:
-        out += free_surface_lines(r.free_surface)
-    if r.cavitation is not None:
-        out += cavitation_lines(r.cavitation)
-    if r.performance is not None:
-        out += performance_lines(r.performance)
-    if r.stance is not None:
-        out += stance_lines(r.stance)
+    optional = ((r.lateral, sideslip_lines), (r.free_surface, free_surface_lines), (r.cavitation, cavitation_lines),
+                (r.performance, performance_lines), (r.stance, stance_lines))
+    for part, lines_of in optional:  # the analyses that ran, in this order
+        if part is not None:
+            out += lines_of(part)
     out += [""] + [f"Note: {n}" for n in r.notes]
     out += [""] + textwrap.wrap("CAUTION: " + r.caution, 100)
     return "\n".join(out)
+
+
+def neutral_point_line(r) -> str:
+    """Where the neutral point is: datum x, % of the front wing's MAC, and from the mast (or datum origin)."""
+    np_line = (f"Neutral point: x = {r.neutral_point_x_mm:.1f} mm, {r.neutral_point_pct_mac:.1f} % MAC "
+               f"from the front wing's MAC leading edge")
+    if r.neutral_point_from_mast_mm is not None:
+        d = r.neutral_point_from_mast_mm
+        np_line += (f"; {abs(d):.1f} mm {'aft of' if d >= 0 else 'ahead of'} the mast reference "
+                    f"({r.neutral_point_from_mast_pct_mac:+.1f} % MAC)")
+    else:
+        d = r.neutral_point_x_mm
+        np_line += f"; {abs(d):.1f} mm {'aft of' if d >= 0 else 'ahead of'} the datum origin (no mast)"
+    return np_line
+
+
+def sideslip_lines(la) -> list[str]:
+    """The sideslip derivatives and each surface's share of the side force."""
+    out = ["", f"Sideslip (masts and fins in the lattice): CYβ {la.side_force_per_deg:.5f} /deg, "
+               f"Clβ {la.roll_moment_per_deg:.5f} /deg, Cnβ {la.yaw_moment_per_deg:.5f} /deg "
+               "(right-hand about datum x and z, front-wing S and span)"]
+    out += ["  " + ", ".join(f"{k} {v:.5f}" for k, v in la.side_force_slope_per_deg.items()) + " (CYβ share /deg)"]
+    return out
 
 
 def free_surface_lines(fs) -> list[str]:
@@ -177,7 +182,8 @@ def performance_lines(pf) -> list[str]:
     if pf.points:
         terms = list(pf.points[0]["drag_n"])
         rows = [[_f(p["speed_kmh"], ".1f"), _f(p["attitude_deg"], ".2f")] + [_f(p["drag_n"][k], ".1f") for k in terms]
-                + [_f(p["total_n"], ".1f"), _f(p["total_kgf"], ".2f"), _f(p["power_w"], ".0f"), _f(p["l_over_d"], ".1f")]
+                + [_f(p["total_n"], ".1f"), _f(p["total_kgf"], ".2f"), _f(p["power_w"], ".0f"),
+                   _f(p["l_over_d"], ".1f")]
                 for p in pf.points]
         out += table(["km/h", "attitude °"] + [f"{k} N" for k in terms] + ["total N", "kgf", "power W", "L/D"], rows,
                      left=0)

@@ -195,7 +195,8 @@ def recover(out_dir: Path) -> list[str]:
         plan = read_plan(stage)
         try:
             if plan is None:
-                what = f"removed {stage.name}, left by an interrupted run before it committed ({_size_mb(stage):.1f} MB)"
+                what = (f"removed {stage.name}, left by an interrupted run before it committed "
+                        f"({_size_mb(stage):.1f} MB)")
             elif os.path.lexists(stage / "new" / MANIFEST):
                 roll_back(stage, out_dir, plan)
                 what = (f"an earlier run was interrupted while moving its outputs into place; "

@@ -20,7 +20,7 @@ from ..errors import ExportError
 try:
     import fcntl
 except ImportError:  # pragma: no cover  (not POSIX: no folder lock, said once)
-    fcntl = None
+    fcntl = None  # type: ignore[assignment]  # the stubs know only POSIX
 
 LOCK = ".geomgen-lock"
 

@@ -6,6 +6,7 @@ import hashlib
 import json
 from pathlib import Path
 
+from .. import __version__
 from .naming import MANIFEST
 
 
@@ -41,6 +42,4 @@ def file_matches(path: Path, entry: dict) -> bool:
 
 def entry_is_current(entry: dict, info: dict) -> bool:
     """Made by this geomgen version with the same ``info`` (spec hash, options)?"""
-    from .. import __version__
-
     return entry.get("geomgen_version") == __version__ and all(entry.get(k) == v for k, v in info.items())

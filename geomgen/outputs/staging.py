@@ -27,6 +27,7 @@ import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .. import __version__
 from ..errors import ExportError
 from . import journal
 from .formats import Output
@@ -119,6 +120,7 @@ class Staging:
             raise ExportError(f"two outputs want the same name '{name}'")
         self.names.append(name)
         self.purposes[name] = purpose
+        assert self.dir is not None, "outputs are staged inside the with block"
         p = self.dir / "new" / name
         try:
             p.parent.mkdir(parents=True, exist_ok=True)
@@ -163,8 +165,6 @@ class Staging:
         name), ``spec_sha256`` and ``command``. Files of the same set from another spec hash
         or geomgen version are removed (or, if edited since, left and reported).
         """
-        from .. import __version__
-
         previous = _own_manifest(self.out_dir)
         self._check_foreign(previous)
         entries = {name: e for name, e in previous.items() if (self.out_dir / name).is_file()}
@@ -179,12 +179,13 @@ class Staging:
                 else:
                     stale_keep.append(name)
                     entries[name] = {**e, "stale": True}
+        assert self.dir is not None, "outputs are staged inside the with block"
         new = self.dir / "new"
         for name in self.names:
             p = new / name
             entries[name] = {"name": name, "size": p.stat().st_size, "sha256": sha256_of(p),
                              "geomgen_version": __version__, "purpose": self.purposes.get(name, ""), **info}
-        manifest = {"written_by": "geomgen", "files": [entries[n] for n in sorted(entries)]}
+        manifest: dict = {"written_by": "geomgen", "files": [entries[n] for n in sorted(entries)]}
         try:
             (new / MANIFEST).write_text(json.dumps(manifest, indent=1) + "\n")
             (new / INDEX).write_text(format_index(manifest["files"]))
@@ -199,6 +200,7 @@ class Staging:
     def _swap_in(self, names: list[str], stale: list[dict]) -> tuple[list[str], bool]:
         """Journal, place, switch (see :mod:`.journal`); on any failure or Ctrl-C before the
         switch put every earlier output back."""
+        assert self.dir is not None, "outputs are staged inside the with block"
         had_old = {n: os.path.lexists(self.out_dir / n) for n in names}
         stale = [{"name": e["name"], "size": e.get("size"), "sha256": e.get("sha256")} for e in stale]
         plan = {"files": [{"name": n, "had_old": had_old[n]} for n in names], "stale": stale}
@@ -254,8 +256,6 @@ def write_set(out_dir, outputs: list[Output], info: dict, say=None, overwrite_ed
 
 def stale_outputs(out_dir, set_name: str, spec_sha256: str) -> list[str]:
     """Files of set ``set_name`` in ``out_dir`` made from another spec or geomgen version."""
-    from .. import __version__
-
     return sorted(n for n, e in read_manifest(out_dir).items()
                   if e.get("set", _set_of(e)) == set_name and (Path(out_dir) / n).is_file()
                   and (e.get("spec_sha256") != spec_sha256 or e.get("geomgen_version") != __version__))
@@ -309,6 +309,7 @@ def format_index(entries: list[dict]) -> str:
         for e in rows:
             stale = " (STALE: edited, does not match the spec)" if e.get("stale") else ""
             lines.append(f"| `{e['name']}` | {e.get('purpose', '') or '-'}{stale} | "
-                         f"`geomgen {e.get('command', '?')}` | {e.get('spec', '?')} ({str(e.get('spec_sha256', ''))[:12]}) |")
+                         f"`geomgen {e.get('command', '?')}` | {e.get('spec', '?')} "
+                         f"({str(e.get('spec_sha256', ''))[:12]}) |")
         lines.append("")
     return "\n".join(lines)

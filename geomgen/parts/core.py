@@ -80,7 +80,8 @@ def core_section(skin: Skin, e: np.ndarray, y: float, t: float, t_min: float, n_
     nd = np.cross(e, c)
     if ((P[:N] - le) @ nd).mean() < 0:
         nd = -nd
-    to2 = lambda X: np.column_stack([(X - le) @ c, (X - le) @ nd])
+    def to2(X):
+        return np.column_stack([(X - le) @ c, (X - le) @ nd])
     P2, Q2 = to2(P), to2(Q)
     W2 = np.column_stack([w @ c, w @ nd])
     # An offset point is kept if it lies t (3D) inside the tangent plane of every outline point
@@ -153,7 +154,8 @@ def plan_core(model, skin: Skin, t: float, t_min: float, n_out: int = 80) -> Cor
     e = np.asarray(model.span_axis, float)
     y_lo, y_hi = model.y_range
     lo, hi = y_lo + t, y_hi - t
-    exists = lambda y: core_section(skin, e, y, t, t_min, n_out) is not None
+    def exists(y):
+        return core_section(skin, e, y, t, t_min, n_out) is not None
     for end in ("lo", "hi"):
         y = lo if end == "lo" else hi
         if exists(y):

@@ -7,9 +7,11 @@ the root chord line, Y along the span, Z toward the upper side; see
 
 from __future__ import annotations
 
+import itertools
 from dataclasses import dataclass, field
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 
 @dataclass
@@ -23,15 +25,15 @@ class Tool:
     """
 
     kind: str
-    origin: np.ndarray
-    axis: np.ndarray
+    origin: ArrayLike  # points and directions: stored as float arrays
+    axis: ArrayLike
     length: float
     radius: float = 0.0
     radius2: float = 0.0
-    xdir: np.ndarray | None = None
+    xdir: ArrayLike | None = None
     size: tuple[float, float] = (0.0, 0.0)
     label: str = ""
-    probe: np.ndarray | None = None  # a point inside the part that this tool must remove (a check)
+    probe: ArrayLike | None = None  # a point inside the part that this tool must remove (a check)
 
     def __post_init__(self):
         self.origin = np.asarray(self.origin, float)
@@ -169,8 +171,6 @@ def clearance(pts, poly: np.ndarray) -> np.ndarray:
 
 def rotations24() -> list[np.ndarray]:
     """The 24 proper rotations that map coordinate axes onto coordinate axes."""
-    import itertools
-
     out = []
     for perm in itertools.permutations(range(3)):
         for signs in itertools.product((1, -1), repeat=3):

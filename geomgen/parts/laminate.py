@@ -65,7 +65,8 @@ def _moulds(model, solid, skin, rf, lam, machine, name_of, say, rep) -> list:
     what = f'surface "{name}" laminate mould'
     say(f"cutting the mould halves of {name}")
     B, t = rf.pose("upper")  # upper pose: machine Z along the part's upper normal
-    pts = skin.evaluate(np.linspace(0, 1, 81), np.linspace(*skin.v_range, 61)).reshape(-1, 3) @ B.T + t
+    v0, v1 = skin.v_range
+    pts = skin.evaluate(np.linspace(0, 1, 81), np.linspace(v0, v1, 61)).reshape(-1, 3) @ B.T + t
     lo, hi = pts.min(axis=0), pts.max(axis=0)
     # the parting surface reaches just past the block (its control net too: a CAD program's
     # default bounding box is then the block's): each chord line to 2 mm beyond the block's
@@ -161,6 +162,7 @@ def _hole_tools(holes, B, t, block, half) -> list:
     """Through holes along machine Z (datum tools), each with a probe in this half's flange."""
     x0, y0, z0, x1, y1, z1 = block
     zp = z1 - 1.0 if half == "upper" else z0 + 1.0
-    to_datum = lambda p: B.T @ (np.asarray(p, float) - t)
+    def to_datum(p):
+        return B.T @ (np.asarray(p, float) - t)
     return [Tool("cylinder", to_datum([x, y, z0 - 1.0]), B[2], z1 - z0 + 2.0, radius=0.5 * d,
                  label=f"mould {kind} hole at {x:.0f}, {y:.0f}", probe=to_datum([x, y, zp])) for x, y, d, kind in holes]

@@ -10,6 +10,7 @@ circle by at most the mesh tolerance, or by the segment count's own sag when tha
 from __future__ import annotations
 
 import math
+from typing import Any
 
 import numpy as np
 
@@ -85,7 +86,7 @@ def union(parts):
     return parts[0] if len(parts) == 1 else m3.Manifold.batch_boolean(parts, m3.OpType.Add)
 
 
-def cut_features(piece, groups, what: str, tol: float, must_remove) -> tuple[object, float, list[dict]]:
+def cut_features(piece, groups, what: str, tol: float, must_remove) -> tuple[Any, float, list[dict]]:
     """``piece`` (a Manifold) less each feature (``groups``: [(label, [Tool])]) in turn.
 
     ``must_remove(label)`` is True where the feature reaches into this piece's material by its

@@ -72,6 +72,7 @@ def parting_skin(model, skin: Skin, margin: float, reach: tuple[float, float] | 
         if reach is None:
             a, b = margin, margin
         else:
+            assert rf is not None  # a reach is given with its root frame
             k = float(c @ rf.chord)
             a = ((le - rf.le) @ rf.chord - reach[0]) / k
             b = (reach[1] - (te - rf.le) @ rf.chord) / k

@@ -98,7 +98,8 @@ def print_outputs(model, name_of, say) -> tuple[list, dict]:
         need = {t.label for t in tl if _probes(t, F, a, b)}
         mf, rem, _ = cut_features(mf, _groups(tl), pw, tol, lambda label: label in need)
         if len(mf.decompose()) != 1:
-            raise GeometryError(f"{pw}: the features cut the piece into {len(mf.decompose())} parts; nothing was written")
+            raise GeometryError(f"{pw}: the features cut the piece into {len(mf.decompose())} parts; "
+                                "nothing was written")
         made.append(mf)
         removed += rem
     err = abs(v_bare - v_whole)
@@ -176,8 +177,8 @@ def nozzle_notes(plan, ps) -> list[str]:
             out.append(f"the Ø{sp['channel_diameter']:g} mm spar channel is under three extrusion widths "
                        f"({MIN_HOLE_LINES * w:.2f} mm): it prints undersized or closed")
         if sp["wall_printed_mm"] < MIN_WALL_LINES * w:
-            out.append(f"the spar channel leaves {sp['wall_printed_mm']:.2f} mm of wall at span {sp['wall_at_y']:.1f} mm, "
-                       f"under two extrusion widths ({MIN_WALL_LINES * w:.2f} mm)")
+            out.append(f"the spar channel leaves {sp['wall_printed_mm']:.2f} mm of wall at span "
+                       f"{sp['wall_at_y']:.1f} mm, under two extrusion widths ({MIN_WALL_LINES * w:.2f} mm)")
     return out
 
 

@@ -111,7 +111,8 @@ def _fit(w, usable):
 def choose(v, f, usable, fallbacks=(), normals=((0, 1, 0), (0, -1, 0))) -> Pose:
     """The pose of the mesh (printed mm) for a usable volume [x, y, z] (None: no limit).
 
-    ``normals``: outward directions of the design's flat faces. Flat faces first: one that fits, then one needing no support, then the largest contact;
+    ``normals``: outward directions of the design's flat faces. Flat faces first: one that fits,
+    then one needing no support, then the largest contact;
     ``fallbacks``: rotations tried when no flat face gives a pose that fits."""
     cands = []
     for nrm, area in flat_faces(v, f, normals):
@@ -133,6 +134,7 @@ def choose(v, f, usable, fallbacks=(), normals=((0, 1, 0), (0, -1, 0))) -> Pose:
         key = (0 if fits in (None, True) else 1, over > SUPPORT_SHARE * total, -contact, over)
         if best is None or key < best[0]:
             best = (key, Pose(R, np.zeros(3), what, contact, over, total, size, fits))
+    assert best is not None  # at least one candidate pose
     p = best[1]
     w = v @ p.R.T
     lo, hi = w.min(axis=0), w.max(axis=0)

@@ -89,6 +89,7 @@ def choose_pose(dims_print: np.ndarray, outboard: int, volume) -> tuple[np.ndarr
         key = (0 if fits in (None, True) else 1, pref)
         if best is None or key < best[0]:
             best = (key, M, name, fits)
+    assert best is not None  # at least one axis-aligned pose
     return best[1], best[2], best[3]
 
 
@@ -115,6 +116,21 @@ def _grow(model, a, limit, scale, volume, avoid, tol=0.5) -> float:
     return b
 
 
+def _widest_centre(model, y_hi, scale, volume, avoid) -> float:
+    """Half width c of the widest centre piece [-c, c] that fits (an odd piece count), kept out of ``avoid``."""
+    lo, hi = 0.0, y_hi
+    if _fits(model, -hi, hi, scale, volume):
+        return hi
+    while hi - lo > 0.5:
+        mid = 0.5 * (lo + hi)
+        lo, hi = (mid, hi) if _fits(model, -mid, mid, scale, volume) else (lo, mid)
+    c = lo
+    for alo, ahi in avoid:
+        if alo < c < ahi:
+            c = alo
+    return c
+
+
 def auto_split(model, scale, volume, odd: bool, avoid) -> tuple[list[float], str]:
     """Joint positions so every piece fits ``volume``; symmetric on a mirrored part."""
     y_lo, y_hi = model.y_range
@@ -126,8 +142,8 @@ def auto_split(model, scale, volume, odd: bool, avoid) -> tuple[list[float], str
             if b <= a + 1e-9:
                 raise GeometryError(
                     f'surface "{model.name}" printing: the part at span {a:.1f} mm (about '
-                    f"{' x '.join(f'{v:.0f}' for v in extents_local(model, a, a + 1) * scale)} printed mm) does not fit "
-                    f"the build volume {' x '.join(f'{v:g}' for v in volume)} mm in any axis-aligned pose")
+                    f"{' x '.join(f'{v:.0f}' for v in extents_local(model, a, a + 1) * scale)} printed mm) "
+                    f"does not fit the build volume {' x '.join(f'{v:g}' for v in volume)} mm in any axis-aligned pose")
             if b < y_hi - 1e-9:
                 cuts.append(b)
             a = b
@@ -148,18 +164,7 @@ def auto_split(model, scale, volume, odd: bool, avoid) -> tuple[list[float], str
     if not odd and not any(lo < 0.0 < hi for lo, hi in avoid):
         half = outward(0.0)
         options.append(([-c for c in half[::-1]] + [0.0] + half, "even"))
-    # odd: the widest centre piece [-c, c] that fits
-    lo, hi = 0.0, y_hi
-    if _fits(model, -hi, hi, scale, volume):
-        c = hi
-    else:
-        while hi - lo > 0.5:
-            mid = 0.5 * (lo + hi)
-            lo, hi = (mid, hi) if _fits(model, -mid, mid, scale, volume) else (lo, mid)
-        c = lo
-        for alo, ahi in avoid:
-            if alo < c < ahi:
-                c = alo
+    c = _widest_centre(model, y_hi, scale, volume, avoid)
     if c >= y_hi - 1e-9:
         options.append(([], "odd"))
     elif c > 0.5:
@@ -203,7 +208,7 @@ def plan_spars(model, ps) -> tuple[list[Tool], list[dict], list[str]]:
             cos = abs(d[1]) / np.linalg.norm(d)
             r_eff = r / cos
             ys = np.linspace(ya, yb, max(41, int((yb - ya) / 2.0) + 1))
-            worst = (math.inf, None)
+            worst: tuple[float, float | None] = (math.inf, None)
             for y in ys:
                 c = Al + (y - ya) / (yb - ya) * d
                 w = float(clearance(c[[0, 2]], section_local(model, float(y), 100))[0]) - r_eff
@@ -286,7 +291,8 @@ def plan_locators(model, ps, joints, spars, mount_holes) -> tuple[list[Tool], li
             continue
         pb = pts[best]
         u = (pb - pa) / np.linalg.norm(pb - pa)
-        to3 = lambda p, y: F.to_datum(np.array([p[0], y, p[1]]))
+        def to3(p, y):
+            return F.to_datum(np.array([p[0], y, p[1]]))
         tools.append(cylinder_between(to3(pa, yj - dep), to3(pa, yj + dep), r, label=f"{label} round locator"))
         e1, e2 = pb - 0.5 * ext * u, pb + 0.5 * ext * u
         tools += slot_tools(to3(e1, yj - dep), to3(e2, yj - dep), F.span_axis, r, 2 * dep,

@@ -95,8 +95,8 @@ def write_shop_parts(project, out_dir=None, *, progress: Callable[[str], None] |
     res.seconds = time.perf_counter() - t0
     outputs += [Output(output_name(project.name, "parts", suffix=".json"), "json", report,
                        "every shop part: sizes, volumes, poses (datum to file matrices), checks"),
-                Output(output_name(project.name, "parts", suffix=".txt"), "text", lambda: format_parts_summary(res, for_file=True),
-                       "what the parts command wrote, per surface")]
+                Output(output_name(project.name, "parts", suffix=".txt"), "text",
+                       lambda: format_parts_summary(res, for_file=True), "what the parts command wrote, per surface")]
     done = project.write("parts", outputs, say)
     res[:] = done.files  # the report and the summary too
     res.notes = done.notes()

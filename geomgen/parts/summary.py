@@ -23,12 +23,13 @@ def _mount(m: dict) -> list[str]:
            f"    flat over {100 * p['flat_fraction']:.0f} % of the footprint (deepest cut {p['max_cut_mm']:.2f} mm"
            + (f", gaps to the skin {p['min_gap_mm']:.2f} .. {p['max_gap_mm']:.2f} mm" if p.get("min_gap_mm") is not None
               else "")
-           + (f"; skin at z = {p['skin_z_range'][0]:.2f} .. {p['skin_z_range'][1]:.2f} mm" if p.get("skin_z_range") else "")
+           + (f"; skin at z = {p['skin_z_range'][0]:.2f} .. {p['skin_z_range'][1]:.2f} mm" if p.get("skin_z_range")
+              else "")
            + ")"]
     out += [f"    WARNING: {n}" for n in p.get("notes", [])]
     if "wall_mm" in p:
-        out.append(f"    least wall under the pad {p['wall_mm']:.2f} mm to the {far} skin at x = {p['wall_at'][0]:.1f}, "
-                   f"y = {p['wall_at'][1]:.1f} (min_wall {m['min_wall_mm']:g})")
+        out.append(f"    least wall under the pad {p['wall_mm']:.2f} mm to the {far} skin at "
+                   f"x = {p['wall_at'][0]:.1f}, y = {p['wall_at'][1]:.1f} (min_wall {m['min_wall_mm']:g})")
     for h in m["holes"]:
         kind = h["kind"]
         desc = {"through": f"Ø{h['diameter']:g} through",
@@ -68,8 +69,9 @@ def _printing(p: dict) -> list[str]:
                    f"{s['span'][1]:g} mm at {100 * s['chord'][0]:.0f} .. {100 * s['chord'][1]:.0f} % chord: least wall "
                    f"{s['wall_printed_mm']:.2f} printed mm at span {s['wall_at_y']:.1f}")
     if "volume_bare_mesh_mm3" in p:
-        out.append(f"    check: pieces {_cm3(p['volume_pieces_mm3'])} + removed features {_cm3(p['volume_removed_mm3'])} = "
-                   f"meshed part {_cm3(p['volume_bare_mesh_mm3'])}; exact part {_cm3(p['volume_whole_mm3'])} (mesh "
+        out.append(f"    check: pieces {_cm3(p['volume_pieces_mm3'])} + removed features "
+                   f"{_cm3(p['volume_removed_mm3'])} = meshed part {_cm3(p['volume_bare_mesh_mm3'])}; "
+                   f"exact part {_cm3(p['volume_whole_mm3'])} (mesh "
                    f"{100 * p['balance_error_rel']:.2f} % off, within its {p['mesh_tol']:g} mm tolerance), design size")
     for pc in p["pieces"]:
         if "overhang_mm2" in pc and not pc["needs_support"] and pc["overhang_mm2"] > 0:
@@ -93,21 +95,23 @@ def _laminate(lam: dict) -> list[str]:
     if m:
         hv = {h["half"]: h for h in m["halves"]}
         fl = m.get("flange")
-        out.append(f"    two-part mould ({m['parting']} parting): part halves {_cm3(hv['upper']['volume_mm3'])} upper + "
-                   f"{_cm3(hv['lower']['volume_mm3'])} lower = part {_cm3(m['volume_part_mm3'])}"
+        out.append(f"    two-part mould ({m['parting']} parting): part halves "
+                   f"{_cm3(hv['upper']['volume_mm3'])} upper + {_cm3(hv['lower']['volume_mm3'])} lower "
+                   f"= part {_cm3(m['volume_part_mm3'])}"
                    + (f"; flange {fl['width']:g} mm, {fl['thickness']:g} mm behind the cavity" if fl else ""))
         for h in m["halves"]:
             if "stock_size_mm" in h:
-                out.append(f"      {h['half']} mould: stock {' x '.join(f'{v:.1f}' for v in h['stock_size_mm'])} mm, cavity "
-                           f"{_cm3(h['cavity_mm3'])}, solid as written {_cm3(h['volume_written_mm3'])}; {h['file']}")
+                out.append(f"      {h['half']} mould: stock {' x '.join(f'{v:.1f}' for v in h['stock_size_mm'])} mm, "
+                           f"cavity {_cm3(h['cavity_mm3'])}, solid as written {_cm3(h['volume_written_mm3'])}; "
+                           f"{h['file']}")
             else:
                 out.append(f"      {h['half']}: {h['file']}")
         holes = m.get("holes") or []
         if holes:
             dw = [h for h in holes if h["kind"] == "dowel"]
             bo = [h for h in holes if h["kind"] == "bolt"]
-            out.append(f"      {len(dw)} dowel holes Ø{dw[0]['diameter']:g} and {len(bo)} bolt holes Ø{bo[0]['diameter']:g} "
-                       "through both halves (positions in the report)")
+            out.append(f"      {len(dw)} dowel holes Ø{dw[0]['diameter']:g} and {len(bo)} bolt holes "
+                       f"Ø{bo[0]['diameter']:g} through both halves (positions in the report)")
         out += [f"      WARNING: {w}" for w in m.get("notes", [])]
     return out
 
@@ -131,7 +135,8 @@ def format_parts_summary(res, for_file: bool = False) -> str:
             lines += _laminate(s["laminate"])
         lines.append("")
     if files:
-        rel = lambda p: Path(p).relative_to(res.out_dir) if for_file and hasattr(res, "out_dir") else p
+        def rel(p):
+            return Path(p).relative_to(res.out_dir) if for_file and hasattr(res, "out_dir") else p
         lines += ["written:"] + [f"  {rel(p)}" for p in files] + [""]
     notes = list(rep.get("notes", [])) + list(getattr(res, "notes", []))
     if notes:

@@ -23,7 +23,7 @@ UNDERCUT_TOL_MM = 0.05
 
 def _section_xz(skin, rf: RootFrame, y: float, n: int) -> np.ndarray:
     """Closed section outline at span ``y`` in (chord, normal) coordinates from the root LE."""
-    p = skin.evaluate(np.linspace(*skin.u_range, n), [float(y)])[:, 0]
+    p = skin.evaluate(np.linspace(skin.u_range[0], skin.u_range[1], n), [float(y)])[:, 0]
     q = p - rf.le
     return np.column_stack([q @ rf.chord, q @ rf.normal])
 

@@ -88,8 +88,9 @@ class Figure:
 
 def _main_figures(data) -> list:
     cols = [("span_mm", "span mm", ".1f"), ("projected_area_cm2", "area cm²", ".1f"), ("aspect_ratio", "AR", ".2f"),
-            ("mac_mm", "MAC mm", ".1f"), ("mac_y_mm", "MAC ȳ mm", ".1f"), ("mac_le_x_mm", "MAC leading edge x mm", ".1f"),
-            ("mac_qc_x_mm", "MAC quarter chord x mm", ".1f"), ("volume_cm3", "volume cm³", ".1f")]
+            ("mac_mm", "MAC mm", ".1f"), ("mac_y_mm", "MAC ȳ mm", ".1f"),
+            ("mac_le_x_mm", "MAC leading edge x mm", ".1f"), ("mac_qc_x_mm", "MAC quarter chord x mm", ".1f"),
+            ("volume_cm3", "volume cm³", ".1f")]
     rows = []
     for i, s in enumerate(data["surfaces"]):
         row = [[V(("surfaces", i, "name"), "str")], [V(("surfaces", i, "role"), "str")],
@@ -106,15 +107,16 @@ def _main_figures(data) -> list:
 
 def _balance(data) -> list:
     b = data["balance"]
-    out = [Heading(2, ["Balance"], "balance")]
+    out: list = [Heading(2, ["Balance"], "balance")]
     if b is None:
         return out + [Para(["No wing or stabilizer: no balance analysis."], "note")]
     B = lambda k, f=".1f": V(("balance", k), f)  # noqa: E731
     np_parts = ["Neutral point at datum x ", B("neutral_point_x_mm"), " mm, ", B("neutral_point_pct_mac"),
                 " % of the MAC of ", B("reference_wing", "str"), " from its leading edge"]
     if b["mast_x_mm"] is not None:
-        np_parts += ["; ", B("neutral_point_from_mast_mm", "+.1f"), " mm (", B("neutral_point_from_mast_pct_mac", "+.1f"),
-                     " % MAC) from the mast reference (", B("mast", "str"), ", ", B("mast_reference", "str"),
+        np_parts += ["; ", B("neutral_point_from_mast_mm", "+.1f"), " mm (",
+                     B("neutral_point_from_mast_pct_mac", "+.1f"), " % MAC) from the mast reference (",
+                     B("mast", "str"), ", ", B("mast_reference", "str"),
                      ", x ", B("mast_x_mm"), " mm; positive aft)."]
     else:
         np_parts += ["."]
@@ -161,7 +163,8 @@ def _balance(data) -> list:
         out.append(Para(["Estimated takeoff: ", V(("balance", "takeoff", "speed_kmh"), ".1f"),
                          " km/h (", V(("balance", "takeoff", "speed_ms"), ".2f"), " m/s) at attitude ",
                          V(("balance", "takeoff", "attitude_deg"), "+.2f"), " °, where the front wing's most loaded "
-                         "strip reaches a section lift coefficient of ", V(("balance", "takeoff", "cl_max"), ".2f"), "."]))
+                         "strip reaches a section lift coefficient of ", V(("balance", "takeoff", "cl_max"), ".2f"),
+                         "."]))
     out += _water(b)
     out.append(Bullets([[V(("balance", "notes", i), "str")] for i in range(len(b["notes"]))], "note"))
     return out
@@ -169,7 +172,7 @@ def _balance(data) -> list:
 
 def _water(b) -> list:
     """Free surface, cavitation, drag and envelope, and where the rider stands (issue 11)."""
-    out = []
+    out: list = []
     fs, cv, pf, st = b.get("free_surface"), b.get("cavitation"), b.get("performance"), b.get("stance")
     if fs:
         F = lambda *k, f=".1f": V(("balance", "free_surface") + k, f)  # noqa: E731
@@ -177,15 +180,17 @@ def _water(b) -> list:
         out.append(Para(["Still water at datum z ", F("water_z_mm", f=".0f"), " mm (", F("how", f="str"),
                          "). Against deep water the neutral point moves ", F("neutral_point_shift_mm", f="+.1f"),
                          " mm (", F("neutral_point_shift_pct_mac", f="+.2f"), " % MAC, positive aft)."]))
-        out.append(Bullets([[F("surfaces", i, "name", f="str"), ": root depth ", F("surfaces", i, "depth_root_mm", f=".0f"),
-                             " mm, lift slope ", F("surfaces", i, "lift_slope_change_pct", f="+.2f"),
+        out.append(Bullets([[F("surfaces", i, "name", f="str"), ": root depth ",
+                             F("surfaces", i, "depth_root_mm", f=".0f"), " mm, lift slope ",
+                             F("surfaces", i, "lift_slope_change_pct", f="+.2f"),
                              " % against deep water"] for i in range(len(fs["surfaces"]))]))
         out.append(Para(["Limits: ", F("limits", f="str"), "."], "note"))
     if cv:
         C = lambda *k, f=".1f": V(("balance", "cavitation") + k, f)  # noqa: E731
         out.append(Heading(3, ["Cavitation"], "cavitation"))
-        rows = [[[C("surfaces", i, "name", f="str")], [C("surfaces", i, "onset_kmh")], [C("surfaces", i, "y_mm", f=".0f")],
-                 [C("surfaces", i, "x_over_c", f=".3f")], [C("surfaces", i, "side", f="str")],
+        rows = [[[C("surfaces", i, "name", f="str")], [C("surfaces", i, "onset_kmh")],
+                 [C("surfaces", i, "y_mm", f=".0f")], [C("surfaces", i, "x_over_c", f=".3f")],
+                 [C("surfaces", i, "side", f="str")],
                  [C("surfaces", i, "cp_min", f=".3f")], [C("surfaces", i, "depth_mm", f=".0f")]]
                 for i in range(len(cv["surfaces"]))]
         out.append(Table([["surface"], ["onset km/h"], ["span y mm"], ["chord x/c"], ["side"], ["Cp,min"],
@@ -239,7 +244,7 @@ def _views(data) -> list:
 
 
 def _sections(data) -> list:
-    out = [Heading(2, ["Sections at the stations"], "sections")]
+    out: list = [Heading(2, ["Sections at the stations"], "sections")]
     for i, s in enumerate(data["surfaces"]):
         out.append(Heading(3, [V(("surfaces", i, "name"), "str")]))
         rows = []
@@ -260,11 +265,12 @@ def _sections(data) -> list:
 
 
 def _spanwise(data) -> list:
-    cap = ["Chord, twist and lift loading along the span, from the root (one half of a mirrored part). "
+    cap: list = ["Chord, twist and lift loading along the span, from the root (one half of a mirrored part). "
            "Loading: section lift coefficient times local chord from the vortex lattice"]
     if data["balance"] is not None:
         cap += [" at the reference attitude of ", V(("balance", "alpha_ref_deg"), ".1f"), " °"]
-    return [Heading(2, ["Spanwise distributions"], "spanwise"), Figure("spanwise", "spanwise distributions", cap + ["."])]
+    return [Heading(2, ["Spanwise distributions"], "spanwise"),
+            Figure("spanwise", "spanwise distributions", cap + ["."])]
 
 
 def _section_properties(data) -> list:
@@ -301,7 +307,7 @@ def _check(data) -> list:
         bad.append(bool(r["bad"]))
     header = [["part"], ["figure"], ["unit"], ["intended"], ["measured STEP"], ["measured STL"], ["build tolerance"],
               ["expected"], ["± expected"], ["result"]]
-    out = [Heading(2, ["Check of the written files"], "check"),
+    out: list = [Heading(2, ["Check of the written files"], "check"),
            Para(["Each figure intended (from the spec), measured from the written STEP (through the CAD kernel, "
                  "skin sampled within ", V(("check", "skin_sampling_mm"), ".4f"), " mm) and STL (chordal tolerance ",
                  V(("check", "stl_tol_mm"), "g"), " mm), against the build tolerance and the calculation sheet's "
@@ -333,7 +339,8 @@ def page(data) -> list:
     head = [Heading(1, ["Design report: ", V(("spec", "name"), "str")], "top"), caution,
             Para(["Spec ", V(("spec", "file"), "str"), ". Datum origin: ", V(("spec", "datum_origin"), "str"),
                   ". Frame: x aft, y to starboard, z up; lengths mm, angles degrees (positive: leading edge up), "
-                  "areas cm², volumes cm³, forces N and kgf. Written by geomgen ", V(("geomgen_version",), "str"), "."]),
+                  "areas cm², volumes cm³, forces N and kgf. Written by geomgen ", V(("geomgen_version",), "str"),
+                  "."]),
             Heading(2, ["Verdict"], "verdict"),
             Bullets([[V(("check", "summary", i), "str")] for i in range(len(data["check"]["summary"]))],
                     "ok" if data["check"]["ok"] else "bad")]

@@ -10,12 +10,15 @@ the upper side), rounded to 0.001 mm.
 
 from __future__ import annotations
 
+import copy
+import json
 import math
 
 
 import numpy as np
 
 from .. import CAUTION, __version__
+from ..errors import SpecError
 
 #: Version of the report dict's layout (bump when a key changes meaning).
 REPORT_FORMAT = 1
@@ -57,7 +60,8 @@ def _span_samples(model) -> np.ndarray:
     lo, hi = model.y_range
     t = 0.5 * (1.0 - np.cos(np.linspace(0.0, math.pi, SPAN_SAMPLES)))
     ys = set((lo + (hi - lo) * t).tolist())
-    ys |= {float(v) for v in model.station_breaks} | ({-float(v) for v in model.station_breaks} if model.mirror else set())
+    ys |= ({float(v) for v in model.station_breaks}
+           | ({-float(v) for v in model.station_breaks} if model.mirror else set()))
     return np.array(sorted(v for v in ys if lo - 1e-9 <= v <= hi + 1e-9))
 
 
@@ -79,9 +83,9 @@ def _outline(model) -> dict:
         span.append(float(p[:, ax].mean()))
         le.append(float(p[:, 0].min()))
         te.append(float(p[:, 0].max()))
-    le, te = np.array(le), np.array(te)
-    return {"axis": "xyz"[ax], "span_mm": _r(span), "le_x_mm": _r(le), "te_x_mm": _r(te),
-            "quarter_chord_x_mm": _r(le + 0.25 * (te - le))}
+    le_x, te_x = np.array(le), np.array(te)
+    return {"axis": "xyz"[ax], "span_mm": _r(span), "le_x_mm": _r(le_x), "te_x_mm": _r(te_x),
+            "quarter_chord_x_mm": _r(le_x + 0.25 * (te_x - le_x))}
 
 
 def _section_shape(model, y: float) -> dict:
@@ -238,7 +242,6 @@ def drawing_data(project, *, progress=None) -> dict:
     project : :class:`~geomgen.project.Project`
     progress : callable(str), optional
     """
-    from ..errors import SpecError
     from ..geometry.figures import intended_figures
     from ..hydro import balance_of
 
@@ -301,8 +304,6 @@ def report_data(project, out_dir=None, *, progress=None, drawing: dict | None = 
         JSON-able (no nan): ``spec``, ``caution``, ``surfaces`` (figures, measured figures, MAC,
         stations, outlines, spanwise chord and twist, loading), ``check``, ``balance``, ``hydro``.
     """
-    import copy
-
     from ..check.run import check
     from ..project import Project
 
@@ -328,8 +329,6 @@ COMPARISON_FIGURES = ("wing_lift_n", "stab_lift_n", "stab_lift_pct_weight", "dra
 def _comparison(project) -> dict | None:
     """The set's latest what-if comparison (``geomgen compare`` into the same folder), if it was
     made from this very spec (same hash in the manifest); else None."""
-    import json
-
     from ..outputs import output_name, read_manifest
     from ..studies.figures import FIGURES
 

@@ -18,7 +18,7 @@ import numpy as np  # noqa: E402
 from .content import format_value  # noqa: E402
 
 #: colour, line style, marker of each thing drawn (roles of parts, and balance points).
-STYLE = {
+STYLE: dict[str, dict] = {
     "wing": dict(color="#1f5aa6", ls="-", marker="o", label="front wing"),
     "stabilizer": dict(color="#c85a00", ls="--", marker="s", label="stabilizer"),
     "mast": dict(color="#555555", ls="-.", marker="D", label="mast"),
@@ -239,7 +239,7 @@ def sections(data, surface: dict) -> bytes:
     f = format_value
     for k, (x, (lo, hi), h) in enumerate(zip(st, rows, heights)):
         top -= title_h
-        a = fig.add_axes([left / fig_w, (top - h) / fig_h, ax_w / fig_w, h / fig_h])
+        a = fig.add_axes((left / fig_w, (top - h) / fig_h, ax_w / fig_w, h / fig_h))
         top -= h + gap_h
         sh = x["shape"]
         a.fill(sh["x_mm"], sh["z_mm"], color=_st(surface["role"])["color"], alpha=0.18, lw=0)

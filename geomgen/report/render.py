@@ -25,7 +25,8 @@ body{font-family:system-ui,-apple-system,"Segoe UI",Roboto,"DejaVu Sans",sans-se
 padding:0 1em;color:#111;line-height:1.45}
 h1{font-size:1.6em;margin-bottom:.3em}h2{border-bottom:2px solid #333;padding-bottom:.15em;margin-top:1.8em}
 .caution{border:3px solid #000;background:#fff4d6;padding:.7em 1em;font-weight:600;font-size:1.05em}
-.ok{border-left:6px solid #1b7a2e;padding-left:.8em}.bad{border-left:6px double #b3141c;padding-left:.8em;font-weight:600}
+.ok{border-left:6px solid #1b7a2e;padding-left:.8em}
+.bad{border-left:6px double #b3141c;padding-left:.8em;font-weight:600}
 .note{color:#333;font-size:.92em}
 table{border-collapse:collapse;margin:.6em 0 .3em;font-size:.86em}
 th,td{border:1px solid #999;padding:.18em .45em;vertical-align:top}th{background:#eee;text-align:left}

@@ -29,7 +29,8 @@ class DrawingWorker:
 
     def __init__(self, drawing: dict, progress=None):
         self.drawing, self.say = drawing, progress or (lambda m: None)
-        self.proc = self.tmp = None
+        self.proc: subprocess.Popen | None = None
+        self.tmp: str | None = None
 
     def __enter__(self):
         if (os.cpu_count() or 1) > 1 and os.environ.get("GEOMGEN_REPORT_INLINE") != "1":

@@ -46,6 +46,8 @@ class Section:
         Largest distance (chord fractions) between a fitted curve and the file's points.
     """
 
+    source_info: dict  # what a coordinate file held (set by the file reader only)
+
     def __init__(self, upper: Curve, lower: Curve, label: str, fit_deviation: float | None = None):
         self._upper = upper
         self._lower = lower
@@ -192,4 +194,5 @@ class Section:
             return f
 
         dev = max(d for d in (self.fit_deviation, other.fit_deviation, 0.0) if d is not None)
-        return Section(mix(a_up, b_up), mix(a_lo, b_lo), f"{self.label} blended {w:.0%} toward {other.label}", dev or None)
+        return Section(mix(a_up, b_up), mix(a_lo, b_lo), f"{self.label} blended {w:.0%} toward {other.label}",
+                       dev or None)

@@ -55,7 +55,10 @@ def _tokens(ctx: _Where, text: str):
     """Name line and blocks of (x, y, line number) separated by blank lines."""
     if text.count("\n") >= MAX_LINES:
         raise ctx.err(f"more than {MAX_LINES} lines; refused as too long for a coordinate file")
-    name, blocks, cur, started = None, [], [], False
+    name: str | None = None
+    started = False
+    blocks: list[list[tuple[float, float, int]]] = []
+    cur: list[tuple[float, float, int]] = []
     for ln, raw in enumerate(text.splitlines(), 1):
         s = raw.strip()
         if not s:

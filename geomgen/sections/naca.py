@@ -141,7 +141,9 @@ def naca(designation: str, closed_te: bool = False) -> Section:
         kind, prm = parse_designation(designation)
     except ValueError as exc:
         raise SpecError(str(exc)) from None
-    digits = _DESIGNATION.match(str(designation)).group(1)
+    m = _DESIGNATION.match(str(designation))
+    assert m is not None  # parse_designation accepted it
+    digits = m.group(1)
     if kind == "4":
         m, p = prm["m"], prm["p"]
         up, lo = _perpendicular(lambda x: camber_4digit(x, m, p), prm["t"], closed_te)

@@ -55,7 +55,8 @@ def _unwrap(tp):
 
 def _path(loc: tuple, data) -> str:
     """('surface', 0, 'station', 1, 'chord') -> 'surface[0] "front-wing" station[1] chord'."""
-    out, node = [], data
+    out: list[str] = []
+    node = data
     for part in loc:
         if isinstance(part, int):
             out[-1] += f"[{part}]"
@@ -71,7 +72,7 @@ def _path(loc: tuple, data) -> str:
     return " ".join(out) if out else "(top level)"
 
 
-def _describe(err: dict, data) -> str:
+def _describe(err: typing.Mapping, data) -> str:
     loc = tuple(p for p in err["loc"] if not (isinstance(p, str) and p.startswith(("function-", "tagged-"))))
     kind = err["type"]
     if kind == "extra_forbidden":
@@ -83,7 +84,8 @@ def _describe(err: dict, data) -> str:
     if kind == "missing":
         return f"{_path(loc, data)}: required field missing"
     msg = err["msg"].removeprefix("Value error, ")
-    if "input" in err and kind not in ("value_error", "model_type", "dict_type") and not isinstance(err["input"], (dict, list)):
+    if ("input" in err and kind not in ("value_error", "model_type", "dict_type")
+            and not isinstance(err["input"], (dict, list))):
         msg += f", got {err['input']!r}"
     return f"{_path(loc, data)}: {msg}"
 
@@ -91,10 +93,10 @@ def _describe(err: dict, data) -> str:
 def _cross_checks(data: dict) -> list[str]:
     """Problems pydantic cannot see alone: section names used by stations and blends."""
     problems = []
-    sections = data.get("sections") if isinstance(data.get("sections"), dict) else {}
+    sections = s if isinstance(s := data.get("sections"), dict) else {}
     names = list(sections)
-    surfaces = data.get("surface") if isinstance(data.get("surface"), list) else []
-    seen = {}
+    surfaces = s if isinstance(s := data.get("surface"), list) else []
+    seen: dict[str, int] = {}
     for i, surf in enumerate(surfaces):
         if not isinstance(surf, dict):
             continue
@@ -108,7 +110,7 @@ def _cross_checks(data: dict) -> list[str]:
             if key in RESERVED_NAMES:
                 problems.append(f"{_path(('surface', i, 'name'), data)}: '{nm}' is the name of another output "
                                 f"of the set (its file would clash); choose another name")
-        stations = surf.get("station") if isinstance(surf.get("station"), list) else []
+        stations = s if isinstance(s := surf.get("station"), list) else []
         problems += _station_order(data, i, stations, surf.get("mirror") is True)
         for j, st in enumerate(stations):
             if not isinstance(st, dict):
@@ -145,8 +147,9 @@ def _prefix_clashes(data, seen: dict) -> list[str]:
 def _station_order(data, i, stations, mirror) -> list[str]:
     """Stations strictly increasing in span, not nearly coincident, root at 0 when mirrored."""
     out = []
-    ys = [st.get("y") if isinstance(st, dict) else None for st in stations]
-    at = lambda j, key: _path(("surface", i, "station", j, key), data)
+    ys: list = [st.get("y") if isinstance(st, dict) else None for st in stations]
+    def at(j, key):
+        return _path(("surface", i, "station", j, key), data)
     for j in range(1, len(ys)):
         a, b = ys[j - 1], ys[j]
         if not all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in (a, b)):
@@ -184,7 +187,9 @@ def _lattice_budget(spec) -> list[str]:
 def _raw_problems(data, source: str) -> list[str]:
     """Before validation, on the raw TOML (iterative: no recursion): nesting deeper than
     MAX_SPEC_DEPTH, more than MAX_SPEC_VALUES values, control characters in keys or text."""
-    todo, count, bad = [(data, (), 0)], 0, []
+    todo: list[tuple[typing.Any, tuple, int]] = [(data, (), 0)]
+    count = 0
+    bad: list[str] = []
     while todo:
         node, loc, depth = todo.pop()
         if depth > MAX_SPEC_DEPTH:
@@ -200,7 +205,7 @@ def _raw_problems(data, source: str) -> list[str]:
                 c = control_char(text) if isinstance(text, str) else None
                 if c is not None and len(bad) < MAX_ERROR_LINES:
                     at = _path(loc + (k,), data) if what == "text" else (_path(loc, data) if loc else "(top level)")
-                    bad.append(f"{source}: {at}: {what} {printable(text, 60)!r} holds a control character "
+                    bad.append(f"{source}: {at}: {what} {printable(str(text), 60)!r} holds a control character "
                                f"(U+{ord(c):04X}); only printable text may reach the outputs")
             if isinstance(v, (dict, list)):
                 todo.append((v, loc + (k,), depth + 1))
@@ -229,7 +234,8 @@ def load_spec_text(text: str, source: str = "<spec>") -> Spec:
         problems += _lattice_budget(spec)
     if problems:
         raise SpecError([f"{source}: {p}" for p in problems])
-    spec._source = Path(source)  # type: ignore[attr-defined]  (messages and relative files)
+    assert spec is not None  # validated without problems
+    spec._source = Path(source)  # type: ignore[attr-defined]  # messages and relative files; pydantic: set, not a field
     return spec
 
 

@@ -64,15 +64,17 @@ class Expectation(_Strict):
     def tolerance_for(self, value: float) -> float:
         """Absolute tolerance (figure units) around ``value``."""
         if isinstance(self.tol, str):
-            return abs(value) * float(_TOL.match(self.tol).group(1)) / 100.0
+            m = _TOL.match(self.tol)
+            assert m is not None  # the validator accepted it
+            return abs(value) * float(m.group(1)) / 100.0
         return float(self.tol)
 
 
 #: Figures a surface's ``expect`` table may name (definitions in DEVELOPERS.md).
 EXPECTABLE = ("span_mm", "projected_area_cm2", "aspect_ratio", "mac_mm", "mac_y_mm",
               "mac_le_x_mm", "mac_qc_x_mm", "root_chord_mm", "tip_chord_mm", "taper_ratio",
-              "sweep_qc_deg", "volume_cm3", "wetted_area_cm2", "datum_area_cm2", "datum_mac_mm", "root_area_mm2", "root_i_chord_mm4",
-              "root_i_normal_mm4", "root_j_mm4")
+              "sweep_qc_deg", "volume_cm3", "wetted_area_cm2", "datum_area_cm2", "datum_mac_mm", "root_area_mm2",
+              "root_i_chord_mm4", "root_i_normal_mm4", "root_j_mm4")
 
 
 class Expect(_Strict):
@@ -210,7 +212,8 @@ class SurfaceSpec(_Strict):
                                                     "(default half the last chord)")
     tip_end: Num = Field(defaults.ROUND_TIP_END_CHORD, ge=0.02, le=0.6,
                            description="round tip: chord of the small flat end, as a fraction of the last chord")
-    station: list[StationSpec] = Field(min_length=2, max_length=MAX_STATIONS, description="spanwise stations, root first")
+    station: list[StationSpec] = Field(min_length=2, max_length=MAX_STATIONS,
+                                       description="spanwise stations, root first")
     expect: Optional[Expect] = None
     check_at: list[CheckAt] = Field(default_factory=list, max_length=MAX_CHECK_AT,
                                     description="measurements at named span positions (chord, thickness, profile)")

@@ -186,8 +186,9 @@ class PrintingSpec(_Strict):
     min_te: Optional[Num] = Field(
         None, gt=0.0, le=10.0, description="thicken the trailing edge to at least this, printed mm")
     split_at: list[DatumMM] = Field(
-        default_factory=list, max_length=MAX_SPLITS, description="span positions of the joints, mm from the root reference point "
-                                          "(negative: port half of a mirrored part)")
+        default_factory=list, max_length=MAX_SPLITS,
+        description="span positions of the joints, mm from the root reference point "
+                    "(negative: port half of a mirrored part)")
     build_volume: Optional[tuple[DatumMM, DatumMM, DatumMM]] = Field(
         None, description="printer build volume [x, y, z], mm; without split_at the part is split "
                           "automatically so every piece fits (in an axis-aligned pose)")

@@ -9,6 +9,7 @@ along the span. Units: mm, N, N·mm, MPa (N/mm²).
 from __future__ import annotations
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 
 def _cumtrapz(f: np.ndarray, x: np.ndarray) -> np.ndarray:
@@ -17,7 +18,7 @@ def _cumtrapz(f: np.ndarray, x: np.ndarray) -> np.ndarray:
     return out
 
 
-def shear_and_moment(s: np.ndarray, at: np.ndarray, force: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def shear_and_moment(s: ArrayLike, at: ArrayLike, force: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
     """(shear N, bending moment N·mm) at distances ``s`` from the root of a cantilever carrying
     point forces ``force`` at distances ``at`` (everything outboard of s counts)."""
     s, at, force = (np.asarray(v, float) for v in (s, at, force))

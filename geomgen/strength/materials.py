@@ -9,6 +9,8 @@ from __future__ import annotations
 
 from dataclasses import asdict, dataclass
 
+from ..errors import SpecError
+
 
 @dataclass(frozen=True)
 class Material:
@@ -48,8 +50,6 @@ def material_of(name: str | None, e_gpa: float | None = None, g_gpa: float | Non
                 density_kg_m3: float | None = None) -> Material:
     """The named example material, with any of E, G and density replaced by the user's values;
     or the user's own material when no name is given (E and G both needed)."""
-    from ..errors import SpecError
-
     if name is None:
         if e_gpa is None or g_gpa is None:
             raise SpecError("name a material (--material, one of: " + ", ".join(MATERIALS) + ") or give both "

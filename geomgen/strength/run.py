@@ -4,6 +4,7 @@ condition the user states (speed and load factor; no default), for a material th
 from __future__ import annotations
 
 from .. import CAUTION, __version__
+from ..errors import SpecError
 
 #: Printed above and below every result of this package.
 FIRST_ESTIMATE = (
@@ -17,7 +18,6 @@ def loads(project, speed_kmh: float, load_factor: float, material, allowable_mpa
           side_force_n: float = 100.0) -> dict:
     """Loads and first estimates of every surface of ``project`` (a Project). Wings and
     stabilizers need the spec's ``[flight]`` mass; masts do not. Returns a JSON-able dict."""
-    from ..errors import SpecError
     from .estimate import mast_estimate, stiffness_along, wing_estimate
 
     models = project.models
@@ -80,8 +80,9 @@ def format_loads(res: dict) -> str:
                 "(+ leading edge up)"]
     for m in res["masts"]:
         out += ["", f'mast "{m["name"]}" (clamped at the board, {m["length_mm"]:.0f} mm to the fuselage):',
-                f"  per {m['side_force_n']:g} N side force at the fuselage: deflection {m['tip_deflection_mm']:.1f} mm, "
-                f"root moment {m['root_moment_nm']:.1f} N·m, bending stress {m['max_stress_mpa']:.1f} MPa at "
+                f"  per {m['side_force_n']:g} N side force at the fuselage: "
+                f"deflection {m['tip_deflection_mm']:.1f} mm, root moment {m['root_moment_nm']:.1f} N·m, "
+                f"bending stress {m['max_stress_mpa']:.1f} MPa at "
                 f"{m['max_stress_at_mm']:.0f} mm" + _margin(m),
                 f"  torsional stiffness {m['torsional_stiffness_nm_per_deg']:.2f} N·m per degree "
                 f"({m['twist_per_nm_deg']:.3f}° per N·m)"]

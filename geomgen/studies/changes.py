@@ -22,6 +22,7 @@ import copy
 import math
 import re
 from dataclasses import dataclass
+from typing import Any
 
 from ..errors import SpecError
 
@@ -109,7 +110,7 @@ def _resolve(data: dict, path: str):
         segs = parse_path(path)
     except ValueError as exc:
         raise SpecError([str(exc)]) from None
-    node = data
+    node: Any = data
     for i, (key, sel) in enumerate(segs):
         last = i == len(segs) - 1
         if sel is None:

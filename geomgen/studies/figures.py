@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import math
 
+from ..errors import GeomgenError
+
 #: figure key -> (heading, unit), in table order
 FIGURES = {
     "wing_lift_n": ("front wing lift", "N"),
@@ -47,7 +49,6 @@ def variant_figures(text: str, source: str = "<variant>", *, cruise_kmh: float |
     Returns a dict of :data:`FIGURES` keys (None where a figure does not apply) plus
     ``cruise_kmh``; or ``{"error": message}`` when the variant cannot be made or balanced.
     """
-    from ..errors import GeomgenError
     from ..geometry import build_models
     from ..geometry.figures import intended_figures
     from ..hydro import analyse
@@ -68,7 +69,7 @@ def variant_figures(text: str, source: str = "<variant>", *, cruise_kmh: float |
         return {"error": f"{source}: {exc}"}
     t = next((p for p in res.trim if abs(p.speed_kmh - v) < 1e-9), None)
     roles = {s.name: s.role for s in res.surfaces}
-    out = {k: None for k in FIGURES}
+    out: dict[str, float | None] = {k: None for k in FIGURES}
     out["cruise_kmh"] = float(v)
     for m in models:  # each surface's planform, as the family table shows it
         f = intended_figures(m)

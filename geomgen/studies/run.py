@@ -7,8 +7,10 @@ executor, so the table is the same bytes whichever ran it.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from pathlib import Path
 from typing import Callable
 
+from ..errors import GeomgenError, SpecError
 from .figures import variant_figures
 
 
@@ -43,12 +45,10 @@ def evaluate(task: Task) -> dict:
 
 def _build_and_check(task: Task) -> dict:
     """Build and check one variant from its text (written beside its output folder)."""
-    from pathlib import Path
-
     from ..check.run import check
-    from ..errors import GeomgenError
     from ..project import Project
 
+    assert task.build_dir is not None  # called only for a variant that is built
     out = Path(task.build_dir)
     out.mkdir(parents=True, exist_ok=True)
     spec = out / "variant.toml"
@@ -76,15 +76,15 @@ class Executor:
         if self.address:
             return self._dask(tasks, say)
         if self.jobs <= 1 or n <= 1:
-            rows = []
+            rows: list = []
             for i, t in enumerate(tasks):
                 rows.append(evaluate(t))
                 say(i + 1, n)
             return rows
-        import multiprocessing
+        import multiprocessing  # only a parallel run pays for the process pool's imports
         from concurrent.futures import ProcessPoolExecutor, as_completed
 
-        rows: list = [None] * n
+        rows = [None] * n
         # spawn: fresh interpreters, nothing inherited from this process (threads, kernel)
         with ProcessPoolExecutor(max_workers=self.jobs, mp_context=multiprocessing.get_context("spawn")) as pool:
             futures = {pool.submit(evaluate, t): i for i, t in enumerate(tasks)}
@@ -94,8 +94,6 @@ class Executor:
         return rows
 
     def _dask(self, tasks: list[Task], say) -> list[dict]:
-        from ..errors import SpecError
-
         try:
             from distributed import Client, as_completed
         except ImportError:

@@ -6,6 +6,7 @@ from __future__ import annotations
 import csv
 import io
 import math
+import re
 
 from .. import CAUTION
 from .figures import FIGURES
@@ -67,7 +68,8 @@ def to_csv(t: Table) -> str:
 
 
 def to_json(t: Table) -> dict:
-    clean = lambda v: None if isinstance(v, float) and not math.isfinite(v) else v
+    def clean(v):
+        return None if isinstance(v, float) and not math.isfinite(v) else v
     return {"kind": t.kind, "title": t.title, "inputs": t.inputs, "labels": t.labels, "notes": t.notes,
             "figures": {k: {"label": h, "unit": u} for k, (h, u) in FIGURES.items()},
             "rows": [{k: clean(v) for k, v in r.items()} for r in t.rows], "caution": CAUTION_STUDY}
@@ -130,11 +132,10 @@ def plots(t: Table, pairs: list[tuple[str, str]]) -> dict[str, bytes]:
 
 def study_outputs(project, t: Table, pairs=(), specs: dict | None = None) -> list:
     """The set's outputs of a study: text, CSV, JSON, Parquet (if available), plots, specs."""
-    import re
-
     from ..outputs import Output, output_name
 
-    name = lambda *w, suffix: output_name(project.name, t.kind, *w, suffix=suffix, folder="studies")
+    def name(*w, suffix):
+        return output_name(project.name, t.kind, *w, suffix=suffix, folder="studies")
     outs = [Output(name(suffix=".txt"), "text", to_text(t), f"the {t.kind} table as text"),
             Output(name(suffix=".csv"), "text", to_csv(t), f"the {t.kind} table, one row per variant (CSV)"),
             Output(name(suffix=".json"), "json", to_json(t), f"the {t.kind} table as JSON")]
