@@ -65,8 +65,8 @@ def main():
 
     t = time.perf_counter()
     from geomgen.build import build
-    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.cad import export  # noqa: F401  (kernel import counted here)
+    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.geometry import build_models
     from geomgen.spec import load_spec, load_spec_text
 

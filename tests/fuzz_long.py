@@ -40,10 +40,9 @@ def _alarm(signum, frame):
 
 def worker(seed: int, cases: int, log: Path, timeout: int) -> None:
     sys.path.insert(0, str(HERE))
+    from fuzz_specs import run_cli_case, spec_params
     from hypothesis import HealthCheck, Phase, given, settings
     from hypothesis import seed as hseed
-
-    from fuzz_specs import run_cli_case, spec_params
 
     signal.signal(signal.SIGALRM, _alarm)
     # a crash of the process (the CAD kernel) must name its case: the Python stack goes to a

@@ -8,8 +8,15 @@ import math
 import numpy as np
 import pytest
 
-from geomgen.strength.beam import (deflection, distributed_shear_and_moment, first_bending_frequency,
-                                   shear_and_moment, torque, torsional_stiffness, twist)
+from geomgen.strength.beam import (
+    deflection,
+    distributed_shear_and_moment,
+    first_bending_frequency,
+    shear_and_moment,
+    torque,
+    torsional_stiffness,
+    twist,
+)
 
 
 def test_cantilever_end_load():

@@ -6,14 +6,12 @@ import json
 
 import pytest
 from click.testing import CliRunner
+from conftest import DEMO, files_in, snapshot, wing_spec
 
 from geomgen.build import build
 from geomgen.cli import main
 from geomgen.errors import ExportError
-from geomgen.outputs import MANIFEST
-
-from conftest import DEMO, files_in, snapshot, wing_spec
-from geomgen.outputs import INDEX
+from geomgen.outputs import INDEX, MANIFEST
 
 pytestmark = pytest.mark.slow
 
@@ -100,8 +98,8 @@ def test_schema_is_json_schema():
 def test_optional_3mf_holds_the_same_mesh_in_millimetres(tmp_path, write_spec):
     """3MF (3D Manufacturing Format core spec): a zip whose model part says unit="millimeter";
     its mesh encloses the same volume as the STL written beside it."""
-    import zipfile
     import xml.etree.ElementTree as ET
+    import zipfile
 
     import numpy as np
     import trimesh

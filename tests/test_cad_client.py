@@ -11,7 +11,6 @@ import subprocess
 import textwrap
 
 import pytest
-
 from conftest import DEMO, ROOT
 
 FREECAD = shutil.which("freecadcmd") or shutil.which("FreeCADCmd")

@@ -9,11 +9,10 @@ import math
 import numpy as np
 import pytest
 from click.testing import CliRunner
+from conftest import DEMO, wing_spec
 
 from geomgen.check.run import check
 from geomgen.cli import main
-
-from conftest import DEMO, wing_spec
 
 pytestmark = pytest.mark.slow
 
@@ -85,9 +84,8 @@ def test_wetted_area_from_the_file_skin_matches_the_kernel_at_tight_accuracy(tmp
     file's own poles) agrees with the CAD kernel's surface integral of the same file asked
     for 1e-8 relative accuracy (slow there, hence not used in the check) to 1e-5."""
     from geomgen.cad.loft import area_mm2
-    from geomgen.cad.measure import read_step
+    from geomgen.cad.measure import measure_step, read_step
     from geomgen.check.measure import skin_surface_area
-    from geomgen.cad.measure import measure_step
 
     stations = [dict(y=0, chord=200), dict(y=150, chord=180, x=15, z=5, twist=-1), dict(y=400, chord=90, x=60, z=-20)]
     spec = wing_spec(te=te, mirror=mirror, interpolation=interp, section='naca = "4412"', stations=stations)
@@ -105,8 +103,8 @@ def test_wetted_area_from_the_file_skin_matches_the_kernel_at_tight_accuracy(tmp
 def test_wetted_area_of_a_box_skin_is_its_six_faces():
     """A bilinear skin around a 100 × 20 section loop, 300 long (open at one chord edge, which the
     strip closes; caps at both ends): the area is the box's, 2(100·300 + 20·300 + 100·20)."""
-    from geomgen.geometry.skin import Skin
     from geomgen.check.measure import skin_surface_area
+    from geomgen.geometry.skin import Skin
 
     # loop: (100,0,+10) -> (0,0,+10) -> (0,0,-10) -> (100,0,-10), the strip closes x = 100
     loop = np.array([[100, 0, 10], [0, 0, 10], [0, 0, -10], [100, 0, -10]], float)

@@ -10,14 +10,13 @@ import os
 
 import numpy as np
 import pytest
+from conftest import wing_spec
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from geomgen import defaults
 from geomgen.check.run import check
 from geomgen.errors import GeomgenError
-
-from conftest import wing_spec
 
 pytestmark = pytest.mark.slow
 

@@ -4,10 +4,9 @@ root expect figures."""
 from __future__ import annotations
 
 import pytest
+from conftest import wing_spec
 
 from geomgen.spec import load_spec_text
-
-from conftest import wing_spec
 
 # NACA 4-digit thickness integral (Abbott & von Doenhoff eq. 6.2 integrated): A = 0.685079 t c²
 NACA_AREA = 10 * (0.2969 * 2 / 3 - 0.1260 / 2 - 0.3516 / 3 + 0.2843 / 4 - 0.1015 / 5)
@@ -75,8 +74,8 @@ def test_chord_line_runs_to_the_trailing_edge_midpoint_whatever_the_sampling():
     gives exactly the x axis, and two samplings agree."""
     import numpy as np
 
-    from geomgen.geometry.sectionprops import section_properties
     from geomgen.geometry.chordline import section_frame
+    from geomgen.geometry.sectionprops import section_properties
 
     fine = _open_loop("0012", 37.0, 1.0, 600)
     coarse = _open_loop("0012", 37.0, 1.0, 41, shift=0.013)

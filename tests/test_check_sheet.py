@@ -8,10 +8,9 @@ from __future__ import annotations
 import math
 
 import pytest
+from conftest import wing_spec
 
 from geomgen.check.run import check
-
-from conftest import wing_spec
 
 pytestmark = pytest.mark.slow
 

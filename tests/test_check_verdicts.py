@@ -7,12 +7,11 @@ import math
 
 import numpy as np
 import pytest
+from conftest import wing_spec
 
 from geomgen.geometry import build_models
 from geomgen.geometry.figures import intended_figures, section_figures
 from geomgen.spec import load_spec_text
-
-from conftest import wing_spec
 
 
 def model_of(text):

@@ -7,12 +7,11 @@ import json
 
 import pytest
 from click.testing import CliRunner
+from conftest import files_in, wing_spec
 
 from geomgen.cli import main
 from geomgen.outputs import INDEX, MANIFEST, read_manifest
 from geomgen.sections import naca
-
-from conftest import files_in, wing_spec
 
 SHOP = """
 [surface.shop]

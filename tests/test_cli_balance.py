@@ -5,10 +5,9 @@ from __future__ import annotations
 import json
 
 from click.testing import CliRunner
+from conftest import DEMO
 
 from geomgen.cli import main
-
-from conftest import DEMO
 
 
 def test_balance_text_and_json():

@@ -7,11 +7,10 @@ import xml.etree.ElementTree as ET
 
 import pytest
 from click.testing import CliRunner
+from conftest import wing_spec
 
 from geomgen.cli import main
 from geomgen.sections import naca
-
-from conftest import wing_spec
 
 
 def coord_file(path, name_line: str):

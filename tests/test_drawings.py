@@ -14,19 +14,18 @@ from pathlib import Path
 import ezdxf
 import numpy as np
 import pytest
+from conftest import DEMO, ROOT, wing_spec
 from scipy.spatial import cKDTree
 
 from geomgen import CAUTION
+from geomgen.drawings import format_shop_summary, hotwire, svg, write_shop_drawings
+from geomgen.drawings.hotwire import offset_loop, section_wire_path
 from geomgen.errors import GeometryError, SpecError
 from geomgen.geometry import build_models
 from geomgen.outputs import INDEX, MANIFEST, read_manifest
 from geomgen.sections import naca
 from geomgen.sections.base import cosine_s
-from geomgen.drawings import format_shop_summary, hotwire, svg, write_shop_drawings
-from geomgen.drawings.hotwire import offset_loop, section_wire_path
 from geomgen.spec import load_spec
-
-from conftest import DEMO, ROOT, wing_spec
 
 SVG = "{http://www.w3.org/2000/svg}"
 
@@ -343,8 +342,9 @@ def test_templates_offsets_and_the_check_agree_on_the_chord(write_spec, tmp_path
     outline reaches ahead of it (Abbott & von Doenhoff §6.4: the upper surface laid square to
     the mean line) and the label says both lengths; the offset table starts at that foremost
     point and gives the chord as typed; the check's intended chord is the same 240 mm."""
-    from geomgen.geometry.figures import section_figures
     from scipy.spatial.distance import pdist
+
+    from geomgen.geometry.figures import section_figures
 
     spec, _ = _write(write_spec, tmp_path, section='naca = "4415"', te=0.3,
                      stations=[dict(y=0, chord=240), dict(y=500, chord=120)])

@@ -12,12 +12,11 @@ import time
 from pathlib import Path
 
 import pytest
+from conftest import snapshot
 
 from geomgen.errors import ExportError
 from geomgen.outputs import MANIFEST, Output, Staging, write_set
 from geomgen.outputs.lock import LOCK, FolderLock
-
-from conftest import snapshot
 
 ROOT = Path(__file__).resolve().parents[1]
 INFO = {"set": "s", "spec_sha256": "a" * 64, "command": "drawings"}
@@ -128,9 +127,9 @@ def test_lock_file_as_a_link_is_refused(tmp_path):
 
 def test_cli_refuses_an_edited_output_and_the_flag_replaces_it(tmp_path, write_spec):
     from click.testing import CliRunner
+    from conftest import wing_spec
 
     from geomgen.cli import main
-    from conftest import wing_spec
 
     spec, out = write_spec(wing_spec()), tmp_path / "o"
     assert CliRunner().invoke(main, ["balance", str(spec), "-o", str(out)]).exit_code == 0

@@ -10,10 +10,9 @@ from pathlib import Path
 
 import pytest
 from click.testing import CliRunner
+from conftest import snapshot, wing_spec
 
 from geomgen.cli import main
-
-from conftest import snapshot, wing_spec
 
 
 @pytest.fixture

@@ -13,6 +13,7 @@ import re
 import numpy as np
 import pytest
 from click.testing import CliRunner
+from fuzz_specs import BAD_VALUES, PROFILE, run_cli_case, spec_params, spec_text
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -20,8 +21,6 @@ from geomgen.errors import GeometryError, SpecError
 from geomgen.geometry import build_models
 from geomgen.geometry.figures import intended_figures
 from geomgen.spec import load_spec_text
-
-from fuzz_specs import BAD_VALUES, PROFILE, run_cli_case, spec_params, spec_text
 
 settings.load_profile(PROFILE)
 
@@ -69,9 +68,9 @@ def test_valid_specs_give_watertight_meshes_matching_the_intended_volume(params)
 @given(spec_params())
 def test_valid_specs_give_valid_solids_measured_as_intended(params):
     """Through the kernel: a valid solid whose STEP volume and outline match the intended."""
-    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.cad.loft import check_solid
     from geomgen.cad.measure import measure_solid
+    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.check.measure import measure_step_solid
 
     models = models_or_refusal(spec_text(params))

@@ -4,13 +4,12 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+from conftest import DEMO, wing_spec
 
 from geomgen.geometry import build_models
 from geomgen.geometry.figures import intended_figures
 from geomgen.geometry.skin import build_skin
 from geomgen.spec import load_spec_text
-
-from conftest import DEMO, wing_spec
 
 
 def model_of(text):

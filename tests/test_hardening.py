@@ -9,13 +9,12 @@ import subprocess
 
 import pytest
 from click.testing import CliRunner
+from conftest import DEMO, snapshot, wing_spec
 
 from geomgen.build import build
 from geomgen.cli import main
 from geomgen.errors import ExportError, SpecError
 from geomgen.outputs import MANIFEST
-
-from conftest import DEMO, snapshot, wing_spec
 
 
 @pytest.mark.slow

@@ -7,10 +7,9 @@ import os
 
 import pytest
 from click.testing import CliRunner
+from conftest import wing_spec
 
 from geomgen.cli import main
-
-from conftest import wing_spec
 
 
 def run(*args):

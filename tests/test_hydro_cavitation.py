@@ -6,15 +6,14 @@ import math
 
 import numpy as np
 import pytest
+from test_hydro import DEMO
 
 from geomgen.hydro import analyse_spec
 from geomgen.hydro.cavitation import sigma
 from geomgen.hydro.panel2d import section_flow, solve_nodes
-from geomgen.hydro.water import G, P_ATM, water
+from geomgen.hydro.water import P_ATM, G, water
 from geomgen.sections.naca import naca
 from geomgen.spec import load_spec
-
-from test_hydro import DEMO
 
 
 def ellipse_nodes(tc, n=160):

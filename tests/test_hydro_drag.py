@@ -6,13 +6,12 @@ import math
 
 import numpy as np
 import pytest
+from test_hydro import DEMO, models_of, surface
 
 from geomgen.hydro import analyse, analyse_spec, format_hydro
 from geomgen.hydro.drag import form_factor, ittc57, section_cd, spray_drag
 from geomgen.spec import load_spec
 from geomgen.spec.flight import FlightSpec
-
-from test_hydro import DEMO, models_of, surface
 
 
 def test_ittc57_at_one_million():

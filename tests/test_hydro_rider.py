@@ -3,12 +3,11 @@
 from __future__ import annotations
 
 import pytest
+from test_hydro import DEMO
 
 from geomgen.hydro import analyse_spec, format_hydro
 from geomgen.hydro.rider import solve_shim
 from geomgen.spec import load_spec, load_spec_text
-
-from test_hydro import DEMO
 
 
 @pytest.fixture(scope="module")

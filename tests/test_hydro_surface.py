@@ -3,14 +3,13 @@
 from __future__ import annotations
 
 import pytest
+from test_hydro import DEMO, models_of, surface
 
 from geomgen.errors import SpecError
 from geomgen.hydro import analyse_spec
 from geomgen.hydro.lattice import build_lattice
 from geomgen.hydro.solve import Flow
 from geomgen.spec import load_spec, load_spec_text
-
-from test_hydro import DEMO, models_of, surface
 
 C = 100.0
 

@@ -7,6 +7,7 @@ import json
 import math
 
 import pytest
+from test_hydro import DEMO, models_of, surface, trapezoid
 
 from geomgen import CAUTION
 from geomgen.errors import SpecError
@@ -15,7 +16,6 @@ from geomgen.hydro import G, analyse, analyse_spec, format_hydro, water
 from geomgen.spec import load_spec, load_spec_text
 from geomgen.spec.flight import FlightSpec
 from geomgen.starter import STARTER
-from test_hydro import DEMO, models_of, surface, trapezoid
 
 #: cruise speeds of the example set (the demo declares 22 km/h as its cruise)
 FLIGHT = FlightSpec(mass_kg=85.0, speeds_kmh=[22.0, 25.0], cl_max=1.1)

@@ -15,11 +15,9 @@ import time
 from pathlib import Path
 
 import pytest
-
-from geomgen.outputs import Output, Staging, write_set
-from geomgen.outputs import journal
-
 from conftest import snapshot
+
+from geomgen.outputs import Output, Staging, journal, write_set
 
 ROOT = Path(__file__).resolve().parents[1]
 N = 120  # files per set: the commit takes long enough to be hit in the middle

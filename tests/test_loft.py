@@ -5,13 +5,12 @@ from __future__ import annotations
 import numpy as np
 import pytest
 import trimesh
+from conftest import DEMO, wing_spec
 
 from geomgen.build import build
 from geomgen.geometry import build_models
 from geomgen.geometry.figures import intended_figures
 from geomgen.spec import load_spec
-
-from conftest import DEMO, wing_spec
 
 pytestmark = pytest.mark.slow
 
@@ -124,8 +123,8 @@ def test_stl_is_watertight_and_holds_the_volume(demo_build):
 
 def test_fine_stl_volume_within_a_tenth_of_a_percent(tmp_path):
     """At δ = 0.005 mm the STL volume is within 0.1 % of the analytic integral."""
-    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.cad.export import write_stl
+    from geomgen.cad.shape import SurfaceShape as Part
 
     for model in build_models(load_spec(DEMO)):
         path = tmp_path / f"{model.name}.stl"

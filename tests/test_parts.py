@@ -12,9 +12,9 @@ import math
 import re
 import shutil
 import subprocess
+import xml.etree.ElementTree as ET
 import zipfile
 from pathlib import Path
-import xml.etree.ElementTree as ET
 
 import numpy as np
 import pytest
@@ -281,6 +281,7 @@ def test_shim_words_give_the_trim_change_from_the_hydrodynamics():
     lattice: a stabilizer leading edge down pushes the tail down, so the board rides nose-up
     and the weight must move forward (the same sign as the decalage rule of thumb)."""
     from conftest import DEMO
+
     from geomgen.hydro import shim_trim_change
     from geomgen.parts.mount import plan_shims
     from geomgen.project import Project
@@ -555,9 +556,10 @@ def test_pieces_stand_on_a_flat_face_inside_the_margin_and_carry_locators(shop):
 
 # -- cores and moulds ----------------------------------------------------------------------
 def _outer_skin_face():
-    from geomgen.cad.shape import SurfaceShape as Part
-    from geomgen.cad.loft import area_mm2
     from OCP.GeomAbs import GeomAbs_BSplineSurface
+
+    from geomgen.cad.loft import area_mm2
+    from geomgen.cad.shape import SurfaceShape as Part
 
     solid = Part(models()["wing"]).solid
     return max((f for f, _ in _faces(solid, GeomAbs_BSplineSurface)), key=area_mm2)
@@ -569,11 +571,11 @@ def test_core_lies_a_laminate_inside_the_skin(shop):
     are 1.0 mm (the laminate) from the part's skin within 0.02 mm, measured by the kernel."""
     from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeVertex
     from OCP.BRepExtrema import BRepExtrema_DistShapeShape
+    from OCP.GeomAbs import GeomAbs_BSplineSurface
     from OCP.gp import gp_Pnt
 
-    from geomgen.cad.measure import skin_of
-    from OCP.GeomAbs import GeomAbs_BSplineSurface
     from geomgen.cad.loft import area_mm2
+    from geomgen.cad.measure import skin_of
 
     lam = shop.report["surfaces"][0]["laminate"]
     core = _one(shop.out_dir / lam["core"]["files"][0])
@@ -598,9 +600,9 @@ def test_moulds_are_stock_blocks_less_the_part_registered_and_tightly_bounded(sh
     up to the part, measured apart), the file's volume as reported, dowel and bolt holes
     through both halves at the same datum places, the parting face up with the root leading
     edge at the machine origin, and a CAD program's default bounding box that of the block."""
-    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.cad.loft import volume_mm3
     from geomgen.cad.ops import bbox, loose_bbox
+    from geomgen.cad.shape import SurfaceShape as Part
     from geomgen.parts.mould import chord_points
 
     m = models()["wing"]
@@ -708,6 +710,7 @@ def test_root_chord_parting_moulds_are_made_and_warn_of_their_undercut(tmp_path)
     """The flat root-chord parting (the other path of the mould code) makes both halves and
     warns of the nose undercut the stations parting avoids."""
     from conftest import ROOT
+
     from geomgen.parts import write_shop_parts
 
     text = (ROOT / "specs" / "demo-stabilizer-shop.toml").read_text()

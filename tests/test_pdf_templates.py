@@ -115,6 +115,7 @@ def test_a_pdf_reader_opens_every_page_at_paper_size(tmp_path):
     import subprocess
 
     from conftest import DEMO
+
     from geomgen.drawings import write_shop_drawings
 
     write_shop_drawings(DEMO, tmp_path / "o")

@@ -5,11 +5,10 @@ from __future__ import annotations
 
 import pytest
 from click.testing import CliRunner
+from conftest import DEMO, wing_spec
 
 from geomgen.cli import main
 from geomgen.project import Project, default_out_dir
-
-from conftest import DEMO, wing_spec
 
 
 def count_calls(monkeypatch, obj, name, counter, key):

@@ -14,14 +14,13 @@ from html.parser import HTMLParser
 from pathlib import Path
 
 import pytest
+from conftest import DEMO
 
 from geomgen import CAUTION
 from geomgen.check.run import memo_key
 from geomgen.outputs import MANIFEST, read_manifest
 from geomgen.project import Project
 from geomgen.report import render_files, report_data, write_report
-
-from conftest import DEMO
 
 CHROMIUM = Path("/usr/bin/chromium")
 

@@ -8,8 +8,14 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from geomgen.geometry.sectionprops import (bredt_batho_j, polygon_moments, principal, resample_sides,
-                                           section_properties, warping_j)
+from geomgen.geometry.sectionprops import (
+    bredt_batho_j,
+    polygon_moments,
+    principal,
+    resample_sides,
+    section_properties,
+    warping_j,
+)
 from geomgen.sections import naca
 
 

@@ -5,13 +5,12 @@ from __future__ import annotations
 
 import pytest
 from click.testing import CliRunner
+from conftest import wing_spec
 
 from geomgen.cli import main
 from geomgen.errors import GeometryError, SpecError
 from geomgen.geometry import build_models
 from geomgen.spec import load_spec
-
-from conftest import wing_spec
 
 
 def problems_of(path) -> list[str]:
@@ -127,8 +126,9 @@ def test_self_crossing_section_refused(write_spec):
     text = text.replace('[[surface.station]]\nsection = "a"\ny = 400',
                         '[[surface.station]]\nsection = "a"\nblend = { section = "b", fraction = 1.0 }\ny = 400')
     build_models(load_spec(write_spec(text)))  # a real blend is fine
-    from geomgen.geometry.polygon import polygon_crosses_itself
     import numpy as np
+
+    from geomgen.geometry.polygon import polygon_crosses_itself
 
     bowtie = np.array([[0, 0], [1, 1], [1, 0], [0, 1]], float)
     assert polygon_crosses_itself(bowtie)

@@ -7,12 +7,11 @@ import time
 
 import pytest
 from click.testing import CliRunner
+from conftest import wing_spec
 
 from geomgen import defaults
 from geomgen.cli import main
 from geomgen.spec import types
-
-from conftest import wing_spec
 
 
 def refused_quickly(tmp_path, text, *words):

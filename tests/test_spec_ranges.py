@@ -5,10 +5,9 @@ from __future__ import annotations
 
 import pytest
 from click.testing import CliRunner
+from conftest import wing_spec
 
 from geomgen.cli import main
-
-from conftest import wing_spec
 
 FLIGHT = "[flight]\nmass_kg = 80\nspeeds_kmh = [20]\n"
 

@@ -10,6 +10,7 @@ import math
 import numpy as np
 import pytest
 from click.testing import CliRunner
+from conftest import DEMO, wing_spec
 
 from geomgen.cli import main
 from geomgen.geometry import build_models
@@ -18,8 +19,6 @@ from geomgen.hydro.loading import StripLoads
 from geomgen.spec import load_spec_text
 from geomgen.strength import MATERIALS, material_of
 from geomgen.strength.estimate import mast_estimate, wing_estimate
-
-from conftest import DEMO, wing_spec
 
 ALU = MATERIALS["aluminium-6061-t6"]
 

@@ -5,18 +5,17 @@ from __future__ import annotations
 
 import json
 import math
-import tomllib
 
 import pytest
+import tomllib
 from click.testing import CliRunner
+from conftest import DEMO
 
 from geomgen.cli import main
 from geomgen.errors import SpecError
 from geomgen.project import Project
 from geomgen.studies import Executor, compare, family, parse_change, parse_values, sweep, to_csv
 from geomgen.studies.changes import apply
-
-from conftest import DEMO
 
 
 @pytest.fixture(scope="module")
@@ -165,7 +164,8 @@ def test_family_builds_and_checks_each_size_when_asked(tmp_path):
 def test_the_report_carries_the_comparison_made_from_the_same_spec(tmp_path):
     """compare writes studies/<set>-compare.json; the report of the same spec and folder shows
     it as a section (values from that file); a changed spec does not show a stale one."""
-    from geomgen.report.content import Table as PageTable, _comparison as comparison_blocks
+    from geomgen.report.content import Table as PageTable
+    from geomgen.report.content import _comparison as comparison_blocks
     from geomgen.report.data import _comparison
 
     out = tmp_path / "o"

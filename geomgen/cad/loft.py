@@ -9,13 +9,18 @@ the skin's end section curves. Faces are sewn, made a solid, oriented outward an
 from __future__ import annotations
 
 import numpy as np
-from OCP.BRepBuilderAPI import (BRepBuilderAPI_MakeEdge, BRepBuilderAPI_MakeFace, BRepBuilderAPI_MakeSolid,
-                                BRepBuilderAPI_MakeWire, BRepBuilderAPI_Sewing)
+from OCP.BRepBuilderAPI import (
+    BRepBuilderAPI_MakeEdge,
+    BRepBuilderAPI_MakeFace,
+    BRepBuilderAPI_MakeSolid,
+    BRepBuilderAPI_MakeWire,
+    BRepBuilderAPI_Sewing,
+)
 from OCP.BRepCheck import BRepCheck_Analyzer
 from OCP.BRepGProp import BRepGProp
 from OCP.Geom import Geom_BSplineSurface
-from OCP.GProp import GProp_GProps
 from OCP.gp import gp_Pnt
+from OCP.GProp import GProp_GProps
 from OCP.ShapeFix import ShapeFix_Solid
 from OCP.TColgp import TColgp_Array2OfPnt
 from OCP.TColStd import TColStd_Array1OfInteger, TColStd_Array1OfReal

@@ -4,12 +4,12 @@ splits, rigid/scaling transforms and bounding boxes (OCP). Meshes: :mod:`.mesh`.
 from __future__ import annotations
 
 import numpy as np
+from OCP.Bnd import Bnd_Box
 from OCP.BRepAlgoAPI import BRepAlgoAPI_Common, BRepAlgoAPI_Cut, BRepAlgoAPI_Fuse, BRepAlgoAPI_Splitter
 from OCP.BRepBndLib import BRepBndLib
 from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeFace, BRepBuilderAPI_MakePolygon, BRepBuilderAPI_Transform
 from OCP.BRepGProp import BRepGProp
 from OCP.BRepPrimAPI import BRepPrimAPI_MakeBox, BRepPrimAPI_MakeCone, BRepPrimAPI_MakeCylinder, BRepPrimAPI_MakePrism
-from OCP.Bnd import Bnd_Box
 from OCP.gp import gp_Ax2, gp_Ax3, gp_Dir, gp_Pln, gp_Pnt, gp_Trsf, gp_Vec
 from OCP.GProp import GProp_GProps
 from OCP.TopAbs import TopAbs_SOLID
@@ -20,6 +20,7 @@ from OCP.TopTools import TopTools_ListOfShape
 from .. import defaults
 from ..errors import GeometryError
 from .loft import bspline_surface, volume_mm3
+
 
 def _P(v):
     return gp_Pnt(*map(float, v))

@@ -9,9 +9,23 @@ from typing import cast
 import numpy as np
 
 from ..geometry.chordline import chord_and_thickness, chord_line_of_points, chord_lines, datum_extent
-from ..geometry.slices import (DATUM_PLANE, Frame, Outline, SkinSlicer, crease_positions, gauss_nodes,
-                              gauss_nodes_between, gauss_on_pieces, planform_figures, root_of, skin_grid,
-                              skin_surface_area, skin_volume_centroid, span_axis_of, span_axis_of_grid)
+from ..geometry.slices import (
+    DATUM_PLANE,
+    Frame,
+    Outline,
+    SkinSlicer,
+    crease_positions,
+    gauss_nodes,
+    gauss_nodes_between,
+    gauss_on_pieces,
+    planform_figures,
+    root_of,
+    skin_grid,
+    skin_surface_area,
+    skin_volume_centroid,
+    span_axis_of,
+    span_axis_of_grid,
+)
 
 
 def _direction(root: float, tip: float) -> float:

@@ -21,7 +21,7 @@ os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 import click  # noqa: E402
 
 from .. import __version__  # noqa: E402
-from ..errors import CheckFailed, ExportError, GeomgenError, GeometryError, SpecError
+from ..errors import CheckFailed, ExportError, GeometryError, GeomgenError, SpecError
 
 #: exit code and the word that starts each message, per kind of failure
 KIND = {SpecError: "spec error", GeometryError: "geometry error", ExportError: "cannot write",

@@ -24,7 +24,8 @@ from . import _Progress, _project, json_option, main, out_option, outside_option
 def build(spec, out_dir, stl_tol, no_stl, with_3mf):
     """Build every surface of SPEC: a STEP solid and a binary STL per surface, plus an
     assembly STEP with every surface named."""
-    from ..build import build as do_build, format_build_summary
+    from ..build import build as do_build
+    from ..build import format_build_summary
 
     formats = ("step",) if no_stl else ("step", "stl")
     project = _project(spec, out_dir, stl_tol)
@@ -112,7 +113,8 @@ def loads(spec, speed_kmh, load_factor, material, e_gpa, g_gpa, density, allowab
     shear, bending moment, stress, tip deflection and twist of wings and stabilizers at a
     stated speed and load factor; mast deflection, stress and torsional stiffness per side
     force. Writes the summary and JSON into the output folder's report/."""
-    from ..strength import format_loads, loads as do_loads, material_of, write_loads
+    from ..strength import format_loads, material_of, write_loads
+    from ..strength import loads as do_loads
 
     mat = material_of(material, e_gpa, g_gpa, density)
     project = _project(spec, out_dir)

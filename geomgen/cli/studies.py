@@ -62,7 +62,8 @@ def compare(spec, changes, others, jobs, scheduler, cruise_kmh, as_json, out_dir
     """What if: the base set and each change (or other spec) side by side: wing and stabilizer
     lift at trim, drag and lift/drag, neutral point, static margin, net centre of pressure
     from the mast and the mast move that restores it, takeoff speed."""
-    from ..studies import Executor, compare as do_compare, parse_change
+    from ..studies import Executor, parse_change
+    from ..studies import compare as do_compare
 
     project = _project(spec, out_dir)
     sets = [[parse_change(c) for c in group.split(";") if c.strip()] for group in changes]
@@ -86,7 +87,8 @@ def compare(spec, changes, others, jobs, scheduler, cruise_kmh, as_json, out_dir
 def family(spec, surface, areas, keep, do_build, jobs, scheduler, cruise_kmh, as_json, out_dir):
     """A size family: one spec per target projected area of a surface, with a table of every
     size's area, span, MAC, volume, neutral point and takeoff speed."""
-    from ..studies import Executor, family as do_family, parse_values
+    from ..studies import Executor, parse_values
+    from ..studies import family as do_family
 
     project = _project(spec, out_dir)
     table, specs = do_family(project, surface, parse_values(areas), keep,
@@ -111,7 +113,8 @@ def family(spec, surface, areas, keep, do_build, jobs, scheduler, cruise_kmh, as
 def sweep(spec, axes, grid, plot_pairs, do_build, jobs, scheduler, cruise_kmh, as_json, out_dir):
     """Vary spec values over lists or ranges, alone or as a grid; analyse every variant and
     write a table (CSV, Parquet, JSON) and plots of chosen outputs against chosen inputs."""
-    from ..studies import FIGURES, Executor, parse_values, sweep as do_sweep
+    from ..studies import FIGURES, Executor, parse_values
+    from ..studies import sweep as do_sweep
 
     project = _project(spec, out_dir)
     parsed = {}

@@ -13,7 +13,6 @@ Page coordinates: mm from the top left corner, y down; template (chord frame) z 
 from __future__ import annotations
 
 import datetime
-
 import math
 from dataclasses import dataclass
 

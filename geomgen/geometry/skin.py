@@ -20,7 +20,6 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.interpolate import BSpline, make_interp_spline
 
-from .. import defaults
 from ..sections.base import Section
 
 DEGREE = 3

@@ -5,11 +5,21 @@ Pure numpy/scipy (no CAD kernel). Entry points: :func:`analyse` and :func:`forma
 """
 
 from .analysis import analyse, analyse_spec, balance_of, neutral_point
+from .results import (
+                      Cavitation,
+                      FreeSurface,
+                      HydroResult,
+                      Lateral,
+                      Loading,
+                      Performance,
+                      Stance,
+                      SurfaceHydro,
+                      Takeoff,
+                      TrimPoint,
+)
 from .text import format_hydro
-from .results import (Cavitation, FreeSurface, HydroResult, Lateral, Loading, Performance, Stance, SurfaceHydro,
-                      Takeoff, TrimPoint)
+from .water import ITTC_2011, G, Water, water
 from .whatif import shim_trim_change
-from .water import G, ITTC_2011, Water, water
 
 __all__ = ["shim_trim_change", "analyse", "balance_of", "analyse_spec", "neutral_point", "format_hydro", "HydroResult",
            "SurfaceHydro", "TrimPoint", "Takeoff", "Lateral", "Loading", "Water", "water", "G", "ITTC_2011",

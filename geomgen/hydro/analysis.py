@@ -29,10 +29,10 @@ from ..geometry.figures import PlanformFigures, planform_figures
 from ..spec.flight import DEFAULT_CHORD_PANELS, DEFAULT_CL_MAX, DEFAULT_SPAN_PANELS
 from .cavitation import cavitation
 from .drag import performance
-from .rider import stance
 from .freesurface import LIMITS, check_submerged, compare, water_level
 from .lattice import build_lattice
 from .results import HydroResult, Lateral, Loading, SurfaceHydro
+from .rider import stance
 from .solve import Flow, solve_attitude
 from .trim import takeoff, trim_point
 from .vortex import WAKE_CORE

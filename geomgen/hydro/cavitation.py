@@ -23,7 +23,7 @@ import numpy as np
 from .panel2d import section_flow, section_flows
 from .results import Cavitation
 from .solve import solve_attitude
-from .water import G, P_ATM
+from .water import P_ATM, G
 
 KMH = 1.0 / 3.6
 V_STEP = 1.0       #: m/s, grid of the onset search (then bisection)

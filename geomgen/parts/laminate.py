@@ -5,15 +5,26 @@ from __future__ import annotations
 import numpy as np
 
 from .. import defaults
+from ..cad.loft import solid_from_skin, volume_mm3
+from ..cad.ops import (
+    bbox,
+    centroid,
+    cut_features,
+    loose_bbox,
+    make_tool,
+    plane_face,
+    prepared,
+    skin_face,
+    split,
+    subtract,
+    transformed,
+)
 from ..errors import GeometryError
 from ..geometry.tessellate import tessellate
 from ..sections.base import Section
 from .core import plan_core
 from .frame import Tool
 from .mould import parting_skin, root_frame
-from ..cad.loft import solid_from_skin, volume_mm3
-from ..cad.ops import (bbox, centroid, cut_features, loose_bbox, make_tool, plane_face, prepared, skin_face, split,
-                       subtract, transformed)
 from .output import shop_output
 from .undercut import undercut_words, undercuts
 

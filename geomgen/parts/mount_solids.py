@@ -5,11 +5,11 @@ from __future__ import annotations
 import numpy as np
 
 from .. import defaults
+from ..cad.loft import volume_mm3
+from ..cad.mesh import mesh
+from ..cad.ops import checked, cut, cut_features, prepared, prism
 from ..errors import GeometryError
 from .mount import plan_mount, plan_shims
-from ..cad.loft import volume_mm3
-from ..cad.ops import checked, cut, cut_features, prepared, prism
-from ..cad.mesh import mesh
 from .output import shop_output
 
 

@@ -13,6 +13,7 @@ from __future__ import annotations
 import numpy as np
 
 from .. import defaults
+from ..cad.mesh import closed
 from ..errors import GeometryError
 from ..geometry.slices import skin_volume_centroid
 from .frame import Frame, rotations24
@@ -21,9 +22,7 @@ from .mount import plan_mount
 from .output import shop_output
 from .pose import choose
 from .printing import plan_printing, printing_model
-from ..cad.mesh import closed
 from .skinmesh import piece_mesh
-
 
 #: A printed edge thinner than this is one line of a common nozzle or less (common practice,
 #: no source); the summary says so.

@@ -14,7 +14,6 @@ import copy
 import json
 import math
 
-
 import numpy as np
 
 from .. import CAUTION, __version__

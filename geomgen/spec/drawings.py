@@ -9,7 +9,7 @@ when the drawings are made, because only the geometry knows the tip.
 
 from __future__ import annotations
 
-from typing import Literal, Annotated, Optional
+from typing import Annotated, Literal, Optional
 
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator
 

@@ -7,17 +7,17 @@ come with the closest valid name. Nothing here raises anything but :class:`SpecE
 from __future__ import annotations
 
 import difflib
-import tomllib
 import typing
 from pathlib import Path
 
+import tomllib
 from pydantic import BaseModel, ValidationError
 
 from ..defaults import MAX_ERROR_LINES, MAX_SPEC_BYTES, MAX_SPEC_DEPTH, MIN_STATION_GAP_MM
 from ..errors import SpecError
 from ..sections.readfile import NotReadable, control_char, printable, read_capped
-from .model import Spec
 from .flight import DEFAULT_CHORD_PANELS, DEFAULT_SPAN_PANELS
+from .model import Spec
 from .types import LATTICE_MATRICES, MAX_LATTICE_BYTES, MAX_SPEC_VALUES, lattice_bytes, lattice_panels
 
 

@@ -14,8 +14,8 @@ from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator, 
 
 from .. import defaults
 from ..sections.naca import parse_designation
-from .flight import FlightSpec
 from .drawings import ShopSpec
+from .flight import FlightSpec
 from .parts import LaminateSpec, MountSpec, PrintingSpec
 from .types import MAX_CHECK_AT, MAX_DATUM_MM, MAX_STATIONS, MAX_SURFACES, DatumMM, Int, Num
 

@@ -27,11 +27,11 @@ class Task:
 
 def evaluate(task: Task) -> dict:
     """Figures of one task (the function every executor runs)."""
-    from threadpoolctl import threadpool_limits
+    import scipy.interpolate  # noqa: F401
 
     # load every numerical library first: a limit set before a BLAS is loaded misses it
     import scipy.linalg  # noqa: F401
-    import scipy.interpolate  # noqa: F401
+    from threadpoolctl import threadpool_limits
 
     from .. import geometry, hydro  # noqa: F401
 

@@ -11,9 +11,10 @@ from __future__ import annotations
 
 import itertools
 import math
-import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
+
+import tomllib
 
 from ..errors import SpecError
 from .changes import Change, apply, get_value
