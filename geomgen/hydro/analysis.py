@@ -328,6 +328,12 @@ def _guard(result, flow, ctx, fl, w, cl_max, pitch_models, v_to=None) -> None:
         warns.append(warning("not_trimmable", f"cruise speed: {at_cruise.reason}", cruise))
     warns += stance_warnings(result.stance, fl.track_travel_mm)
     pf, cv = result.performance, result.cavitation
+    if cv is not None and cv.first_surface:
+        for t in result.trim:
+            if t.trimmable and t.speed_kmh > cv.first_kmh:
+                warns.append(warning("cavitation", f"at {t.speed_kmh:g} km/h the set is past its first cavitation "
+                                                   f"('{cv.first_surface}' at about {cv.first_kmh:.0f} km/h)",
+                                     t.speed_kmh))
     if pf is not None:
         lo, hi = pf.envelope_kmh
         if math.isfinite(lo):
