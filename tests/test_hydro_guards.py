@@ -108,7 +108,8 @@ def test_cruise_below_takeoff_warns_and_gives_no_shim():
 def test_every_attitude_figure_is_left_out_of_an_untrimmable_row():
     r = run(demo_with(speeds_kmh="[2.0, 22.0]"))
     t = r.trim[0].as_dict()
-    assert t["trimmable"] is False and t["attitude_deg"] is None and t["cp_x_mm"] is None and t["lift_n"] == {}
+    assert t["trimmable"] is False and t["attitude_deg"] is None and t["cp_x_mm"] is None
+    assert t["lift_n"] == {"front-wing": None, "stabilizer": None}
     assert r.free_surface.as_dict()["trim"][0]["attitude_change_deg"] is None
     assert [p["speed_kmh"] for p in r.performance.points] == [22.0]
     assert r.cavitation.margin_at_speeds[0]["front-wing"] is None
@@ -317,3 +318,37 @@ def test_unknown_material_is_a_usage_error_with_the_closest_name(tmp_path):
     assert r.exit_code == 2 and "usage error:" in r.output
     r = CliRunner().invoke(main, [])
     assert "usage error" not in r.output and "Usage:" in r.output  # no arguments: the help
+
+
+# -- the report shows them ----------------------------------------------------------------------
+def report_html(tmp_path, text: str) -> tuple[dict, str]:
+    from geomgen.project import Project
+    from geomgen.report import render_files, report_data
+    from test_report import fake_check
+
+    tmp_path.mkdir(parents=True, exist_ok=True)
+    spec = tmp_path / "demo.toml"
+    spec.write_text(text)
+    res = fake_check(spec, tmp_path / "out")
+    project = Project(spec, tmp_path / "out")
+    project.memo("check.result", lambda: res)
+    data = report_data(project)
+    import html
+
+    return data, html.unescape(render_files(data)["report/lakeside-cruiser-report.html"].decode())
+
+
+def test_report_shows_warnings_envelope_reasons_weight_and_water(tmp_path):
+    data, html = report_html(tmp_path / "a", demo_with(speeds_kmh="[16.0, 22.0, 40.0]"))
+    b = data["balance"]
+    assert [w["kind"] for w in b["warnings"]] == ["stabilizer_share", "cp_travel"]
+    assert "Plausibility warnings" in html and b["warnings"][1]["message"] in html
+    env = b["performance"]["envelope_reasons"]
+    assert env[0] == "the takeoff estimate" and "stabilizer" in env[1] and env[1] in html
+    assert b["cg_source"] == "flight.rider_from_mast_mm" and "No centre of gravity given" not in html
+    assert b["static_margin_pct"] is not None and b["water_surface"] in html
+    data, html = report_html(tmp_path / "b", demo_with(speeds_kmh="[5.0, 22.0]"))
+    assert data["balance"]["trim"][0]["reason"] in html  # the row of a speed that does not trim
+    assert not NAN.search(html)
+    data, html = report_html(tmp_path / "c", DEMO_TEXT)
+    assert data["balance"]["warnings"] == [] and "None: every trim speed trims" in html

@@ -107,7 +107,7 @@ def trim_point(flow, ctx, speed_kmh: float, mass_kg: float, water, weight_x_mm=N
 
     def blank(reason: str) -> TrimPoint:
         return TrimPoint(speed_kmh=speed_kmh, speed_ms=v, dynamic_pressure_pa=q, attitude_deg=nan, cl=cl_needed,
-                         lift_n={}, lift_kgf={}, cl_peak={}, reynolds=re, cp_x_mm=nan, cp_from_mast_mm=nan,
+                         lift_n={n: nan for n in names}, lift_kgf={n: nan for n in names}, cl_peak={}, reynolds=re, cp_x_mm=nan, cp_from_mast_mm=nan,
                          moment_about_mast_nm=nan, induced_drag_n=nan, below_takeoff_speed=below,
                          trimmable=False, reason=reason)
 
