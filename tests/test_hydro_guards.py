@@ -352,3 +352,14 @@ def test_report_shows_warnings_envelope_reasons_weight_and_water(tmp_path):
     assert not NAN.search(html)
     data, html = report_html(tmp_path / "c", DEMO_TEXT)
     assert data["balance"]["warnings"] == [] and "None: every trim speed trims" in html
+
+
+@pytest.mark.slow
+def test_check_of_a_set_with_an_untrimmable_cruise_keeps_its_exit_code(tmp_path):
+    """check stopped with a traceback and exit 1 (the 'check failed' code) at cruise 5 km/h."""
+    p = tmp_path / "slow.toml"
+    p.write_text(demo_with(cruise_kmh="5.0"))
+    r = CliRunner().invoke(main, ["check", str(p), "-o", str(tmp_path / "out")])
+    assert r.exit_code == 0 and "Traceback" not in r.output, r.output[-3000:]
+    assert "warning: cruise speed: not trimmable at 5 km/h" in r.output and not NAN.search(r.output)
+    assert "water: free surface at z = 600 mm" in r.output
