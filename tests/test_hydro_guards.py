@@ -363,3 +363,13 @@ def test_check_of_a_set_with_an_untrimmable_cruise_keeps_its_exit_code(tmp_path)
     assert r.exit_code == 0 and "Traceback" not in r.output, r.output[-3000:]
     assert "warning: cruise speed: not trimmable at 5 km/h" in r.output and not NAN.search(r.output)
     assert "water: free surface at z = 600 mm" in r.output
+
+
+def test_study_option_mistakes_are_usage_errors(tmp_path):
+    r = CliRunner().invoke(main, ["sweep", str(DEMO), "--vary", "flight.mass_kg", "-o", str(tmp_path)])
+    assert r.exit_code == 2 and "usage error: Invalid value for --vary" in r.output
+    r = CliRunner().invoke(main, ["sweep", str(DEMO), "--vary", "flight.mass_kg=80,90", "--plot",
+                                  "stab_lift:flight.mass_kg", "-o", str(tmp_path)])
+    assert r.exit_code == 2 and "usage error:" in r.output and "closest output: 'stab_lift_n'" in r.output
+    r = CliRunner().invoke(main, ["compare", str(DEMO), "--change", "wobble", "-o", str(tmp_path)])
+    assert r.exit_code == 2 and "usage error: Invalid value for --change: change 'wobble'" in r.output
