@@ -373,3 +373,16 @@ def test_study_option_mistakes_are_usage_errors(tmp_path):
     assert r.exit_code == 2 and "usage error:" in r.output and "closest output: 'stab_lift_n'" in r.output
     r = CliRunner().invoke(main, ["compare", str(DEMO), "--change", "wobble", "-o", str(tmp_path)])
     assert r.exit_code == 2 and "usage error: Invalid value for --change: change 'wobble'" in r.output
+
+
+@pytest.mark.slow
+def test_build_of_a_wing_typed_in_metres_says_so(tmp_path):
+    """A wing typed in metres was built without a word (span 1.0 mm, area 0.0 cm²)."""
+    p = tmp_path / "metres.toml"
+    p.write_text(wing_in("metres", 1.0, 0.2))
+    r = CliRunner().invoke(main, ["build", str(p), "-o", str(tmp_path / "out")])
+    assert r.exit_code == 0, r.output
+    line = 'warning: wing "front-wing": span 2 mm: did you mean 2000 mm (typed in metres)?'
+    assert line in r.output and line in (tmp_path / "out/report/lakeside-cruiser-build.txt").read_text()
+    r = CliRunner().invoke(main, ["build", str(DEMO), "-o", str(tmp_path / "demo")])
+    assert r.exit_code == 0 and "warning:" not in r.output
