@@ -37,6 +37,7 @@ class BuildResult:
     files: list[Path]
     seconds: float
     notes: list = field(default_factory=list)
+    warnings: list = field(default_factory=list)
 
 
 def build_names(project: Project, formats=("step", "stl"), assembly: bool = True) -> dict[str, list[str]]:
@@ -83,7 +84,10 @@ def build(project, out_dir=None, *, formats=("step", "stl"), stl_tol: float | No
     if "assembly" in names:
         outputs.append(Output(names["assembly"][0], "step", (shapes, options),
                               "every surface in one STEP, each a named component in the datum frame"))
-    result = BuildResult(project.name, project.out_dir, results, [], 0.0, fit_notes(project))
+    from .hydro.guards import dimension_warnings
+
+    result = BuildResult(project.name, project.out_dir, results, [], 0.0, fit_notes(project),
+                         [w["message"] for w in dimension_warnings(project.models)])
     summary_name = output_name(project.name, "build", suffix=".txt")
     result.files = [project.out_dir / o.name for o in outputs]
     result.seconds = time.perf_counter() - t0
@@ -113,6 +117,8 @@ def format_build_summary(res: BuildResult, for_file: bool = False) -> str:
               "'geomgen check' measures the files."]
     if res.notes:
         lines += [""] + [f"note: {n}" for n in res.notes]
+    if res.warnings:  # built as asked; the sizes look like another unit
+        lines += [""] + [f"warning: {w}" for w in res.warnings]
     lines += ["", "written:"]
     lines += [f"  {Path(p).relative_to(res.out_dir) if for_file else p}" for p in res.files]
     lines += ["", "CAUTION: " + CAUTION]

@@ -51,7 +51,7 @@ name = "stabilizer"
 role = "stabilizer"
 mirror = true
 position = [420.0, 0.0, -25.0]
-incidence = -2.0
+incidence = 1.25                       # about 2 % of the weight down at cruise
 te_thickness = 0.5
 [[surface.station]]
 y = 0.0
@@ -85,6 +85,9 @@ naca = "0013"
 # What the balance command needs: total mass on the foil, speeds, water.
 [flight]
 mass_kg = 80.0
-speeds_kmh = [15.0, 20.0, 25.0]
+speeds_kmh = [15.0, 20.0, 24.0]
 fluid = "seawater"
+cruise_kmh = 20.0                      # where the rider stands and the shim is solved
+ride_height_mm = 150.0                 # board above the still water: the free surface
+rider_from_mast_mm = -210.0            # the rider's weight, 21 cm ahead of the mast
 '''

@@ -134,9 +134,11 @@ def fake_check(spec_path, out_dir, nudge: dict | None = None):
 
 
 def spec_with_cg(tmp_path, cg_x=-250.0) -> Path:
-    """The demo spec with the weight position given (its [flight] table is last)."""
+    """The demo spec with the weight position given in datum x instead of from the mast (its
+    [flight] table is last; the two say the same point, so only one is given)."""
     p = tmp_path / "demo-cg.toml"
-    p.write_text(DEMO.read_text() + f"weight_x_mm = {cg_x}\n")
+    text = "\n".join(line for line in DEMO.read_text().splitlines() if not line.startswith("rider_from_mast_mm"))
+    p.write_text(text + f"\nweight_x_mm = {cg_x}\n")
     return p
 
 

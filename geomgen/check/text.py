@@ -72,8 +72,16 @@ def balance_lines(res) -> list[str]:
            f"{b['neutral_point_x_mm']:.1f} mm, {where_np}, "
            f"{b['neutral_point_pct_mac']:.1f} % of the front wing's MAC"]
     if b.get("static_margin_pct") is not None:
-        out.append(f"static margin {b['static_margin_pct']:.1f} % MAC for the weight at x = {b['cg_x_mm']:.1f} mm")
+        src = f" (from {b['cg_source']})" if b.get("cg_source") else ""
+        out.append(f"static margin {b['static_margin_pct']:.1f} % MAC for the weight at x = {b['cg_x_mm']:.1f} mm{src}")
+    w = b.get("water") or {}
+    if w.get("surface"):
+        out.append(f"water: free surface at z = {w['surface_z_mm']:.0f} mm ({w['surface']})" if w.get("free_surface")
+                   else f"water: {w['surface']}")
     for t in b.get("trim") or []:
+        if t.get("trimmable") is False:
+            out.append(f"  {t['speed_kmh']:5.1f} km/h: {t['reason']}")
+            continue
         lifts = ", ".join(f"{k} {v:+.0f} N ({b_kgf:+.1f} kgf)" for (k, v), b_kgf in
                           zip(t["lift_n"].items(), t["lift_kgf"].values()))
         cp, what = t.get("cp_from_mast_mm"), "the mast"
@@ -81,6 +89,7 @@ def balance_lines(res) -> list[str]:
             cp, what = t.get("cp_x_mm"), "the datum origin"
         where = "-" if cp is None else f"{abs(cp):.0f} mm {'ahead of' if cp < 0 else 'behind'} {what}"
         out.append(f"  {t['speed_kmh']:5.1f} km/h: {lifts}; weight must act {where}")
+    out += [f"warning: {x['message']}" for x in b.get("warnings") or []]
     return out
 
 

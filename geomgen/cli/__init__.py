@@ -45,12 +45,35 @@ def _fail(exc: GeomgenError, spec: str | None = None):
     sys.exit(exc.exit_code)
 
 
+#: click's "no arguments: show the help" (a UsageError in click ≥ 8.2): shown as click shows it
+_HELP = getattr(click.exceptions, "NoArgsIsHelpError", ())
+
+
+def _usage(exc: click.UsageError):
+    """A command-line mistake: the usage, then one 'usage error:' line; exit 2."""
+    if isinstance(exc, _HELP):
+        raise exc
+    if exc.ctx is not None:
+        click.echo(exc.ctx.get_usage(), err=True)
+        click.echo(f"Try '{exc.ctx.command_path} -h' for help.", err=True)
+    click.echo(f"usage error: {exc.format_message()}", err=True)
+    sys.exit(2)
+
+
 class Commands(click.Group):
     """The group with the one error handler of every command."""
+
+    def make_context(self, info_name, args, parent=None, **extra):
+        try:  # the group's own options (before the command name)
+            return super().make_context(info_name, args, parent, **extra)
+        except click.UsageError as exc:
+            _usage(exc)
 
     def invoke(self, ctx):
         try:
             return super().invoke(ctx)
+        except click.UsageError as exc:  # a command's options or arguments, or a BadParameter
+            _usage(exc)
         except GeomgenError as exc:
             _fail(exc, ctx.meta.get("geomgen.spec"))
         except OSError as exc:  # a disk or permission failure outside a writer: not a geometry error

@@ -88,13 +88,29 @@ def balance(spec, out_dir, cg_x, sideslip, as_json):
             click.echo(f"note: {n}", err=True)
 
 
+def _material_name(ctx, param, value):
+    """--material: a name of the example table; else a usage error with the choices and the closest name."""
+    if value is None:
+        return None
+    import difflib
+
+    from ..strength.materials import MATERIALS
+
+    if value in MATERIALS:
+        return value
+    close = difflib.get_close_matches(value, list(MATERIALS), n=1, cutoff=0.3)
+    raise click.BadParameter(f"unknown material '{value}'" + (f" (closest: '{close[0]}')" if close else "")
+                             + "; the example table has: " + ", ".join(MATERIALS) + " (or give --e-gpa and --g-gpa)",
+                             ctx=ctx, param=param)
+
+
 @main.command()
 @spec_argument
 @click.option("--speed", "speed_kmh", type=click.FloatRange(0.1, 200.0), required=True,
               help="speed of the stated condition, km/h (no default: say which condition you mean)")
 @click.option("--load-factor", type=click.FloatRange(0.1, 20.0), required=True,
               help="lift as a multiple of the [flight] weight (1 = steady flight; no default)")
-@click.option("--material", type=str, default=None,
+@click.option("--material", type=str, default=None, callback=_material_name,
               help="a material of the example table (see the error for the list), or give --e-gpa and --g-gpa")
 @click.option("--e-gpa", type=click.FloatRange(0.1, 1000.0), default=None, help="Young's modulus along the span, GPa")
 @click.option("--g-gpa", type=click.FloatRange(0.05, 500.0), default=None, help="shear modulus, GPa")
@@ -116,6 +132,11 @@ def loads(spec, speed_kmh, load_factor, material, e_gpa, g_gpa, density, allowab
     from ..strength import format_loads, material_of, write_loads
     from ..strength import loads as do_loads
 
+    if material is None and (e_gpa is None or g_gpa is None):
+        from ..strength.materials import MATERIALS
+
+        raise click.UsageError("name a material (--material, one of: " + ", ".join(MATERIALS) + ") or give both "
+                               "--e-gpa and --g-gpa", ctx=click.get_current_context())
     mat = material_of(material, e_gpa, g_gpa, density)
     project = _project(spec, out_dir)
     res = do_loads(project, speed_kmh, load_factor, mat, allowable_mpa, side_force_n)

@@ -12,6 +12,14 @@ from . import _project, json_option, main, out_option, outside_option, spec_argu
 
 
 # -- design studies ----------------------------------------------------------------------------
+def _option_value(parse, text: str, option: str):
+    """``parse(text)`` of a command-line value; its refusal becomes a usage error naming the option."""
+    try:
+        return parse(text)
+    except SpecError as exc:
+        raise click.BadParameter("; ".join(exc.problems), param_hint=option) from None
+
+
 def _executor_options(f):
     f = click.option("-j", "--jobs", type=click.IntRange(1, 256), default=1,
                      help="local worker processes [default 1]")(f)
@@ -66,9 +74,9 @@ def compare(spec, changes, others, jobs, scheduler, cruise_kmh, as_json, out_dir
     from ..studies import compare as do_compare
 
     project = _project(spec, out_dir)
-    sets = [[parse_change(c) for c in group.split(";") if c.strip()] for group in changes]
+    sets = [[_option_value(parse_change, c, "--change") for c in group.split(";") if c.strip()] for group in changes]
     if not sets and not others:
-        raise SpecError(["compare: give at least one --change or --with"])
+        raise click.UsageError("compare: give at least one --change or --with")
     table = do_compare(project, sets, others, executor=Executor(jobs, scheduler, _Bar()), cruise_kmh=cruise_kmh)
     _study_done(project, table, out_dir, as_json)
 
@@ -91,7 +99,7 @@ def family(spec, surface, areas, keep, do_build, jobs, scheduler, cruise_kmh, as
     from ..studies import family as do_family
 
     project = _project(spec, out_dir)
-    table, specs = do_family(project, surface, parse_values(areas), keep,
+    table, specs = do_family(project, surface, _option_value(parse_values, areas, "--areas"), keep,
                              executor=Executor(jobs, scheduler, _Bar()), cruise_kmh=cruise_kmh,
                              build_root=(project.out_dir / "family") if do_build else None)
     _study_done(project, table, out_dir, as_json, specs=specs)
@@ -121,14 +129,18 @@ def sweep(spec, axes, grid, plot_pairs, do_build, jobs, scheduler, cruise_kmh, a
     for a in axes:
         path, eq, vals = a.partition("=")
         if not eq:
-            raise SpecError([f"--vary '{a}': expected PATH=VALUES"])
-        parsed[path.strip()] = parse_values(vals)
+            raise click.BadParameter(f"'{a}': expected PATH=VALUES", param_hint="--vary")
+        parsed[path.strip()] = _option_value(parse_values, vals, "--vary")
     pairs = []
     for p in plot_pairs:
         y, sep, x = p.partition(":")
         if not sep or y not in FIGURES or x not in parsed:
-            raise SpecError([f"--plot '{p}': expected OUTPUT:INPUT with OUTPUT one of {', '.join(FIGURES)} and "
-                             f"INPUT one of the varied values ({', '.join(parsed)})"])
+            import difflib
+
+            close = difflib.get_close_matches(y, list(FIGURES), n=1, cutoff=0.3) if y not in FIGURES else []
+            raise click.BadParameter(f"'{p}': expected OUTPUT:INPUT with OUTPUT one of {', '.join(FIGURES)} and "
+                                     f"INPUT one of the varied values ({', '.join(parsed)})"
+                                     + (f"; closest output: '{close[0]}'" if close else ""), param_hint="--plot")
         pairs.append((y, x))
     if not pairs:
         pairs = [(y, x) for x in parsed for y in ("stab_lift_pct_weight", "cp_from_mast_mm", "lift_to_drag")]

@@ -30,12 +30,14 @@ from ..spec.flight import DEFAULT_CHORD_PANELS, DEFAULT_CL_MAX, DEFAULT_SPAN_PAN
 from .cavitation import cavitation
 from .drag import performance
 from .freesurface import LIMITS, check_submerged, compare, water_level
+from .guards import cp_shift, dimension_warnings, envelope, stabilizer_share, stance_warnings, trim_warnings, warning
 from .lattice import build_lattice
 from .results import HydroResult, Lateral, Loading, SurfaceHydro
 from .rider import stance
 from .solve import Flow, solve_attitude
 from .trim import takeoff, trim_point
 from .vortex import WAKE_CORE
+from .water import G
 from .water import water as resolve_water
 
 PITCH_ROLES = ("wing", "stabilizer")
@@ -188,11 +190,11 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
     nc = chord_panels or (fl.chord_panels if fl else DEFAULT_CHORD_PANELS)
     inc_v = include_vertical if include_vertical is not None else bool(fl and fl.include_vertical)
     v_pitch = vertical_in_pitch if vertical_in_pitch is not None else bool(fl and fl.vertical_in_pitch)
-    cg = cg_x_mm if cg_x_mm is not None else (fl.weight_x_mm if fl else None)
     lifting = pitch_surfaces(models)
     vertical = [m for m in models if m not in lifting]
     pitch_models = lifting + (vertical if v_pitch else [])
     ctx = _context(pitch_models, models)
+    cg, cg_source = weight_position(cg_x_mm, fl, ctx.mast_x)
     lat = _lattice if _lattice is not None else build_lattice(pitch_models, ns, nc)
     water_z, how = water_level(models, fl) if free_surface else (None, "deep water")
     if water_z is not None:
@@ -225,6 +227,9 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
         "and displacement); 0.1 chord more or less moves a neutral point about 2 % MAC",
     ]
     notes.append(f"free surface: {how}; {LIMITS}" if water_z is not None else f"{how}: no free surface")
+    if cg is None and fl is not None and fl.rider_from_mast_mm is not None:
+        notes.append("flight.rider_from_mast_mm: the set has no mast to measure it from, so no weight position and "
+                     "no static margin (give flight.weight_x_mm instead)")
     if water_z is not None and inc_v and vertical:
         notes.append("sideslip figures are for deep water (the mast pierces the surface; no images)")
     result = HydroResult(
@@ -249,7 +254,7 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
         yaw_moment_coeff=float(ld["moment"][:, 2].sum()) / (qs * b),
         downwash_gradient=dw, surfaces=surfaces, cg_x_mm=cg,
         static_margin_pct=(x_np - cg) / c * 100.0 if cg is not None else None,
-        notes=notes, caution=CAUTION)
+        notes=notes, caution=CAUTION, cg_source=cg_source)
 
     if inc_v and vertical:  # sideslip with masts and fins in the lattice
         if v_pitch:
@@ -261,17 +266,20 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
 
     if fl is not None:
         w = resolve_water(fl.fluid, fl.temperature_c, fl.viscosity_m2s)
-        result.water, result.mass_kg = w.as_dict(), fl.mass_kg
+        result.water, result.mass_kg = water_statement(w, water_z, how), fl.mass_kg
         cl_max = fl.cl_max if fl.cl_max is not None else DEFAULT_CL_MAX
         result.takeoff = takeoff(flow, ctx, fl.mass_kg, w.density, cl_max)
         v_to = result.takeoff.speed_ms
-        result.trim = [trim_point(flow, ctx, v, fl.mass_kg, w, cg, v_to) for v in fl.speeds_kmh]
+        result.trim = [trim_point(flow, ctx, v, fl.mass_kg, w, cg, v_to, cl_max) for v in fl.speeds_kmh]
         if free_surface:  # not for the deep-water twin of a comparison
             start = v_to if v_to and math.isfinite(v_to) else min(fl.speeds_kmh) / 3.6
             result.cavitation = cavitation(flow, ctx, models, w, water_z, fl.mass_kg, start, fl.speeds_kmh)
             result.performance = performance(flow, ctx, models, w, water_z, fl.mass_kg, fl.speeds_kmh,
                                              result.takeoff, result.cavitation.first_kmh, fl.cl_max is not None)
-            result.stance = _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc)
+            result.stance = _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc, cg, cl_max, v_to)
+            _guard(result, flow, ctx, fl, w, cl_max, pitch_models, v_to)
+    if free_surface:
+        result.warnings = dimension_warnings(models) + result.warnings
     if water_z is not None:
         deep = analyse(models, fl, span_panels=ns, chord_panels=nc, alpha_deg=alpha_deg, cg_x_mm=cg_x_mm,
                        include_vertical=False, vertical_in_pitch=v_pitch, free_surface=False,
@@ -280,7 +288,73 @@ def analyse(models, flight=None, *, span_panels: int | None = None, chord_panels
     return result
 
 
-def _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc):
+def weight_position(cg_x_mm, flight, mast_x) -> tuple[float | None, str | None]:
+    """Datum x where the weight acts (mm) and where it comes from: one point, three ways to say it.
+
+    ``--cg`` (``cg_x_mm``) wins; else ``flight.weight_x_mm`` (datum x); else the mast
+    reference plus ``flight.rider_from_mast_mm`` (the rider's weight from the mast). The
+    static margin, the moment about the weight and the mast move all use this point."""
+    if cg_x_mm is not None:
+        return float(cg_x_mm), "--cg"
+    if flight is None:
+        return None, None
+    if flight.weight_x_mm is not None:
+        return float(flight.weight_x_mm), "flight.weight_x_mm"
+    if flight.rider_from_mast_mm is not None and mast_x is not None:
+        return float(mast_x + flight.rider_from_mast_mm), "flight.rider_from_mast_mm"
+    return None, None
+
+
+def water_statement(w, water_z, how: str) -> dict:
+    """The water of every command of a set: its properties and its surface, in one dict."""
+    return {**w.as_dict(), "surface_z_mm": water_z, "surface": how,
+            "free_surface": water_z is not None}
+
+
+def _guard(result, flow, ctx, fl, w, cl_max, pitch_models, v_to=None) -> None:
+    """Plausibility warnings over the trim and the stance, and the usable envelope they end."""
+    stab = next((m.name for m in pitch_models if m.role == "stabilizer"), None)
+    weight = fl.mass_kg * G
+    speeds = sorted(fl.speeds_kmh)
+    cruise = fl.cruise_kmh if fl.cruise_kmh is not None else speeds[len(speeds) // 2]
+
+    def trim_at(v):
+        return trim_point(flow, ctx, v, fl.mass_kg, w, v_takeoff=v_to, cl_max=cl_max)
+
+    at_cruise = trim_at(cruise)
+    cp_cruise = at_cruise.cp_x_mm if at_cruise.trimmable else None
+    warns = trim_warnings(result.trim, weight, stab, cp_cruise, cruise)
+    if not at_cruise.trimmable and cruise not in fl.speeds_kmh:
+        warns.append(warning("not_trimmable", f"cruise speed: {at_cruise.reason}", cruise))
+    warns += stance_warnings(result.stance, fl.track_travel_mm)
+    pf, cv = result.performance, result.cavitation
+    if cv is not None and cv.first_surface:
+        for t in result.trim:
+            if t.trimmable and t.speed_kmh > cv.first_kmh:
+                warns.append(warning("cavitation", f"at {t.speed_kmh:g} km/h the set is past its first cavitation "
+                                                   f"('{cv.first_surface}' at about {cv.first_kmh:.0f} km/h)",
+                                     t.speed_kmh))
+    if pf is not None:
+        lo, hi = pf.envelope_kmh
+        if math.isfinite(lo):
+            lo_reason = ("the takeoff estimate"
+                         if result.takeoff is not None and math.isfinite(result.takeoff.speed_kmh)
+                         else "the lowest [flight] speed (no takeoff estimate)")
+            hi_reason = (f"first cavitation ('{cv.first_surface}')" if cv is not None and cv.first_surface
+                         else "the end of the speeds searched (no cavitation found)")
+
+            def guard(tp):
+                if not tp.trimmable:
+                    return tp.reason
+                return stabilizer_share(tp, weight, stab) or cp_shift(tp, cp_cruise, cruise)
+
+            pf.envelope_kmh, reasons = envelope(trim_at, lo, hi, hi_reason, guard)
+            reasons[0] = lo_reason if reasons[0] == "the takeoff estimate" else reasons[0]
+            pf.envelope_reasons = reasons
+    result.warnings = warns
+
+
+def _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc, weight_x=None, cl_max=None, v_to=None):
     """Mast move under the rider and the stabilizer shim (see :mod:`geomgen.hydro.rider`)."""
     i_stab = next((i for i, m in enumerate(pitch_models) if m.role == "stabilizer"), None)
     stab = pitch_models[i_stab] if i_stab is not None else None
@@ -288,19 +362,21 @@ def _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc):
     cruise = fl.cruise_kmh if fl.cruise_kmh is not None else speeds[len(speeds) // 2]
 
     def trim_at(v):
-        return trim_point(flow, ctx, v, fl.mass_kg, w)
+        return trim_point(flow, ctx, v, fl.mass_kg, w, v_takeoff=v_to, cl_max=cl_max)
 
     def lift_of(d):
         assert stab is not None  # called only with a stabilizer
         if d == 0.0:
             return trim_at(cruise).lift_n.get(stab.name, math.nan)
+        if not math.isfinite(d):
+            return math.nan
         changed = [m.with_incidence(m.spec.incidence + d) if m is stab else m for m in pitch_models]
         lat = build_lattice(changed, ns, nc)
         lat.water_z = water_z
         c2 = _context(changed, models)
-        return trim_point(Flow.solve(lat), c2, cruise, fl.mass_kg, w).lift_n.get(stab.name, math.nan)
+        return trim_point(Flow.solve(lat), c2, cruise, fl.mass_kg, w, cl_max=cl_max).lift_n.get(stab.name, math.nan)
 
-    return stance(fl, trim_at, ctx.mast_x, stab, lift_of)
+    return stance(fl, trim_at, ctx.mast_x, stab, lift_of, weight_x)
 
 
 def neutral_point(models, span_panels: int = DEFAULT_SPAN_PANELS, chord_panels: int = DEFAULT_CHORD_PANELS,

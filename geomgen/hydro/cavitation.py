@@ -172,8 +172,8 @@ def cavitation(flow, ctx, all_models, water, water_z, mass_kg: float, v_start_ms
         out.append(rec)
     out += [_vertical(m, water, water_z) for m in all_models if m.role in ("mast", "fin")]
     at = []
-    for v_kmh in trim_speeds_kmh:
-        st = state(v_kmh * KMH)
+    for v_kmh in trim_speeds_kmh:  # below the lowest speed searched (takeoff) the set does not fly
+        st = state(v_kmh * KMH) if v_kmh * KMH >= v_start_ms * (1.0 - 1e-9) else None
         row = dict(speed_kmh=v_kmh)
         for s in range(n_surf):
             sel = surf_of == s

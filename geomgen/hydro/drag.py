@@ -120,10 +120,10 @@ def mast_drag(mast, water_z, v: float, q: float, nu: float) -> dict:
                 junction=junction_drag(q, t_root * 1e-3, tc_root))
 
 
-def point(flow, ctx, strips, all_models, water, water_z, mass_kg, v_kmh, weight_x=None):
+def point(flow, ctx, strips, all_models, water, water_z, mass_kg, v_kmh, weight_x=None, cl_max=None):
     """Drag, power and L/D at one trimmed speed (dict), or None when the set does not trim."""
-    tp = trim_point(flow, ctx, v_kmh, mass_kg, water, weight_x)
-    if not math.isfinite(tp.attitude_deg):
+    tp = trim_point(flow, ctx, v_kmh, mass_kg, water, weight_x, cl_max=cl_max)
+    if not tp.trimmable:
         return None
     v = v_kmh * KMH
     q = 0.5 * water.density * v * v
@@ -145,9 +145,12 @@ def point(flow, ctx, strips, all_models, water, water_z, mass_kg, v_kmh, weight_
 
 def performance(flow, ctx, all_models, water, water_z, mass_kg, speeds_kmh, takeoff, cavitation_kmh,
                 cl_max_given: bool) -> Performance:
-    """Drag over the ``[flight]`` speeds and a sweep from takeoff to first cavitation (for the plot)."""
+    """Drag over the ``[flight]`` speeds (those that trim) and a sweep from takeoff to first
+    cavitation (for the plot)."""
     strips = StripDrag(flow.lat)
-    pts = [p for p in (point(flow, ctx, strips, all_models, water, water_z, mass_kg, v) for v in speeds_kmh) if p]
+    cl_max = takeoff.cl_max if takeoff is not None else None
+    pts = [p for p in (point(flow, ctx, strips, all_models, water, water_z, mass_kg, v, cl_max=cl_max)
+                       for v in speeds_kmh) if p]
     lo = takeoff.speed_kmh if takeoff is not None and math.isfinite(takeoff.speed_kmh) else min(speeds_kmh)
     hi = cavitation_kmh if cavitation_kmh is not None and math.isfinite(cavitation_kmh) else max(speeds_kmh) * 1.5
     sweep = [p for p in (point(flow, ctx, strips, all_models, water, water_z, mass_kg, float(v))

@@ -81,7 +81,12 @@ class SurfaceHydro(_Record):
 
 @dataclass
 class TrimPoint(_Record):
-    """Lift = weight at one speed. Moments positive nose up; x positive aft."""
+    """Lift = weight at one speed. Moments positive nose up; x positive aft.
+
+    ``trimmable`` is False when no attitude of the searched range carries the weight, or when
+    at that attitude a surface's most loaded strip is past the section cl max (below the
+    takeoff speed, or past stall): then ``reason`` says which in words, and the figures that
+    depend on the attitude are left out (None in JSON)."""
 
     speed_kmh: float
     speed_ms: float
@@ -98,6 +103,8 @@ class TrimPoint(_Record):
     induced_drag_n: float
     moment_about_weight_nm: Optional[float] = None
     below_takeoff_speed: Optional[bool] = None
+    trimmable: bool = True
+    reason: Optional[str] = None
 
 
 @dataclass
@@ -166,8 +173,9 @@ class Performance(_Record):
 
     ``points`` at the ``[flight]`` speeds and ``sweep`` from takeoff to first cavitation: per
     speed the attitude, lift per surface (N), each drag term (N, named), the total (N, kgf),
-    the power (W) and L/D (weight over total drag). ``envelope_kmh``: [takeoff, first
-    cavitation]."""
+    the power (W) and L/D (weight over total drag). ``envelope_kmh``: [takeoff, where the
+    first plausibility guard or the first cavitation ends it], ``envelope_reasons`` the words
+    for each end (:mod:`geomgen.hydro.guards`)."""
 
     points: list
     sweep: list
@@ -176,6 +184,7 @@ class Performance(_Record):
     envelope_kmh: list
     sources: list
     notes: list
+    envelope_reasons: list = field(default_factory=list)
 
 
 @dataclass
@@ -201,7 +210,12 @@ class Stance(_Record):
 
 @dataclass
 class HydroResult(_Record):
-    """The set at the reference attitude, its neutral point and (with a ``[flight]``) its trim."""
+    """The set at the reference attitude, its neutral point and (with a ``[flight]``) its trim.
+
+    ``cg_x_mm``: datum x where the weight acts, from ``cg_source`` ("--cg", "flight.weight_x_mm"
+    or "flight.rider_from_mast_mm"); ``static_margin_pct`` = (neutral point − it) / MAC.
+    ``warnings``: plausibility warnings (:mod:`geomgen.hydro.guards`), each a dict of
+    ``kind``, ``message``, ``speed_kmh``."""
 
     reference: dict
     panels: dict
@@ -237,3 +251,5 @@ class HydroResult(_Record):
     stance: Optional[Stance] = None
     notes: list = field(default_factory=list)
     caution: str = ""
+    cg_source: Optional[str] = None
+    warnings: list = field(default_factory=list)

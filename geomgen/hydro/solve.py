@@ -139,25 +139,34 @@ class Flow:
         return {key: (hi[key] - lo[key]) / (2 * h) for key in hi}
 
 
-def solve_attitude(fun, target: float, lo: float = -0.5, hi: float = 0.6) -> float:
-    """Attitude (rad) where the nearly linear ``fun(alpha)`` equals ``target``; nan if not in [lo, hi].
+#: Attitudes (rad) the trim searches: about −28.6° to +34.4°, far past any section's stall.
+ATTITUDE_RANGE = (-0.5, 0.6)
+
+
+def solve_attitude(fun, target: float, lo: float = ATTITUDE_RANGE[0], hi: float = ATTITUDE_RANGE[1]) -> float:
+    """Attitude (rad) where the nearly linear ``fun(alpha)`` equals ``target``; nan if not in [lo, hi]
+    (or if ``target`` or ``fun`` there is not a number: never raises).
 
     Secant steps from 0 (the functions here are linear in sin and cos of alpha), then a
     bracketing solver if they stray.
     """
     from scipy.optimize import brentq
 
+    if not math.isfinite(target):
+        return math.nan
     f = lambda a: fun(a) - target  # noqa: E731
     a0, a1 = 0.0, 0.05
     f0, f1 = f(a0), f(a1)
     for _ in range(8):
-        if f1 == f0:
+        if f1 == f0 or not (math.isfinite(f0) and math.isfinite(f1)):
             break
         a0, a1, f0 = a1, a1 - f1 * (a1 - a0) / (f1 - f0), f1
+        if not math.isfinite(a1) or abs(a1) > 10.0:
+            break
         f1 = f(a1)
         if abs(a1 - a0) < 1e-12:
-            return a1 if lo <= a1 <= hi else math.nan
+            return a1 if lo <= a1 <= hi and math.isfinite(f1) else math.nan
     flo, fhi = f(lo), f(hi)
-    if flo * fhi > 0:
-        return math.nan
+    if not (math.isfinite(flo) and math.isfinite(fhi)) or flo * fhi > 0:
+        return math.nan  # no root in the bracket, or a function that is not a number there
     return brentq(f, lo, hi, xtol=1e-12)

@@ -66,12 +66,14 @@ def format_hydro(r) -> str:
     if r.downwash_gradient is not None:
         out.append(f"Downwash gradient at the stabilizer (1 − CLα in set / CLα alone): {r.downwash_gradient:.3f}")
     if r.static_margin_pct is not None:
-        out.append(f"Static margin with the weight at x = {r.cg_x_mm:.1f} mm: {r.static_margin_pct:+.1f} % MAC "
+        src = f" (from {r.cg_source})" if r.cg_source else ""
+        out.append(f"Static margin with the weight at x = {r.cg_x_mm:.1f} mm{src}: {r.static_margin_pct:+.1f} % MAC "
                    f"({'stable' if r.static_margin_pct > 0 else 'unstable'} in pitch)")
     if r.trim:
         w = r.water
         out += ["", f"Trim, lift = weight: {r.mass_kg:g} kg ({r.mass_kg * G:.0f} N), {w['name']} "
-                    f"ρ = {w['density']:g} kg/m³, ν = {w['viscosity']:.4g} m²/s ({w['source']})"]
+                    f"ρ = {w['density']:g} kg/m³, ν = {w['viscosity']:.4g} m²/s ({w['source']})",
+                water_line(w)]
         names = [s.name for s in r.surfaces]
         mast = ref["mast_x_mm"] is not None
         heads = ["km/h", "m/s", "attitude °"] + [f"{n} N (kgf)" for n in names] + \
@@ -88,18 +90,16 @@ def format_hydro(r) -> str:
             if r.cg_x_mm is not None:
                 row.append(_f(t.moment_about_weight_nm, "+.1f"))
             row += [_f(t.induced_drag_n, ".1f")] + [_f(t.reynolds.get(n), ".3g") for n in names]
-            if t.below_takeoff_speed:
-                row[0] += "*"
             rows.append(row)
-        out += table(heads, rows, left=0)
+        lines = table(heads, rows, left=0)
+        for k, t in enumerate(r.trim):  # a speed that does not trim: the reason in its row
+            if not t.trimmable:
+                lines[2 + k] = f"{_f(t.speed_kmh, '.1f').rjust(len(heads[0]))}  {t.reason}"
+        out += lines
         out.append("cp: where the weight must act for balance (negative 'to mast': ahead of it). "
                    "Lift is negative when a surface pushes down." if mast else
                    "cp x: where the weight must act for balance, datum x from the datum origin (no mast; "
                    "negative: ahead of it). Lift is negative when a surface pushes down.")
-        if any(t.below_takeoff_speed for t in r.trim):
-            out.append("* below the estimated takeoff speed: the lattice has no stall, so this row is not reachable.")
-        if any(not math.isfinite(t.attitude_deg) for t in r.trim):
-            out.append("— no trim between -28° and +34° attitude at that speed.")
     if r.takeoff is not None:
         to = r.takeoff
         out.append(f"Estimated takeoff: {_f(to.speed_kmh, '.1f')} km/h ({_f(to.speed_ms, '.2f')} m/s) at attitude "
@@ -110,6 +110,10 @@ def format_hydro(r) -> str:
     for part, lines_of in optional:  # the analyses that ran, in this order
         if part is not None:
             out += lines_of(part)
+    if r.warnings:
+        out += ["", "Warnings (plausibility guards: where the set leaves what a rider can ride; warnings, not "
+                    "refusals):"]
+        out += [f"warning: {w['message']}" for w in r.warnings]
     out += [""] + [f"Note: {n}" for n in r.notes]
     out += [""] + textwrap.wrap("CAUTION: " + r.caution, 100)
     return "\n".join(out)
@@ -187,11 +191,24 @@ def performance_lines(pf) -> list[str]:
                 for p in pf.points]
         out += table(["km/h", "attitude °"] + [f"{k} N" for k in terms] + ["total N", "kgf", "power W", "L/D"], rows,
                      left=0)
-    lo, hi = pf.envelope_kmh
-    out.append(f"Usable envelope: from takeoff at {_f(lo, '.1f')} km/h to first cavitation at {_f(hi, '.1f')} km/h "
-               "(estimates: test before relying on either end).")
+    out.append(envelope_line(pf))
     out += [f"Drag: {s}" for s in pf.sources] + pf.notes
     return out
+
+
+def water_line(w: dict) -> str:
+    """The water every command of the set trims in (the free surface or deep water)."""
+    if w.get("free_surface"):
+        return f"Water: free surface at z = {w['surface_z_mm']:.0f} mm ({w['surface']})"
+    return f"Water: {w.get('surface') or 'deep water'}"
+
+
+def envelope_line(pf) -> str:
+    """The usable envelope and what ends it at each side."""
+    lo, hi = pf.envelope_kmh
+    why = pf.envelope_reasons or ["takeoff", "first cavitation"]
+    return (f"Usable envelope: from {_f(lo, '.1f')} km/h ({why[0]}) to {_f(hi, '.1f')} km/h ({why[1]}); "
+            "estimates: test before relying on either end.")
 
 
 def stance_lines(st) -> list[str]:
@@ -202,9 +219,14 @@ def stance_lines(st) -> list[str]:
         out.append(f"Rider's weight {abs(st.rider_from_mast_mm):.0f} mm "
                    f"{'ahead of' if st.rider_from_mast_mm < 0 else 'aft of'} the mast reference: slide the mast "
                    f"{abs(d) / 10:.1f} cm {'aft' if d > 0 else 'forward'} to put the centre of pressure under it.")
-        rows = [[_f(p["speed_kmh"], ".1f"), _f(p["cp_from_mast_mm"], "+.1f"), _f(p["mast_move_mm"] / 10, "+.1f")]
-                for p in st.per_speed]
-        out += table(["km/h", "cp to mast mm", "mast move cm (+ aft)"], rows, left=0)
+    if st.per_speed:
+        rows = [[_f(p["speed_kmh"], ".1f"), _f(p["cp_from_mast_mm"], "+.1f"),
+                 _f(p["mast_move_mm"] / 10 if p["mast_move_mm"] is not None else None, "+.1f")] for p in st.per_speed]
+        lines = table(["km/h", "cp to mast mm", "mast move cm (+ aft)"], rows, left=0)
+        for k, p in enumerate(st.per_speed):
+            if p["mast_move_mm"] is None and p.get("reason"):
+                lines[2 + k] = f"{_f(p['speed_kmh'], '.1f').rjust(4)}  {p['reason']}"
+        out += lines
     if st.shim_deg is not None:
         out.append(f"Stabilizer '{st.stabilizer}': {st.stabilizer_lift_now_kgf:+.2f} kgf now; for "
                    f"{st.stabilizer_target_kgf:+.2f} kgf shim it {st.shim_deg:+.2f}° (leading edge "

@@ -30,6 +30,8 @@ def shim_trim_change(project, surface: str, angle: float) -> tuple[str | None, s
         return None, "the set does not trim over the [flight] speeds: the shim's effect in flight is not given"
     k = len(a.trim) // 2
     ta, tb = a.trim[k], b.trim[k]
+    if not (ta.trimmable and tb.trimmable):
+        return None, f"the shim's effect in trimmed flight is not given: {(ta if not ta.trimmable else tb).reason}"
     d_att = tb.attitude_deg - ta.attitude_deg
     wing = next((s for s in spec.surface if s.role == "wing"), None)
     d_wing = d_att + (angle if wing is not None and wing.name == surface else 0.0)

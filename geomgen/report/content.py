@@ -121,16 +121,19 @@ def _balance(data) -> list:
     else:
         np_parts += ["."]
     out.append(Para(np_parts))
+    out += _warnings(b)
     if b["cg_x_mm"] is not None:
         cg = ["Centre of gravity (where the weight acts) at datum x ", B("cg_x_mm"), " mm"]
         if b["cg_from_mast_mm"] is not None:
             cg += [" (", B("cg_from_mast_mm", "+.1f"), " mm from the mast reference)"]
+        if b.get("cg_source"):
+            cg += [", from ", B("cg_source", "str")]
         cg += ["; static margin ", B("static_margin_pct", "+.1f"), " % MAC (positive: neutral point aft of the "
                "centre of gravity, stable in pitch)."]
         out.append(Para(cg, "ok" if (b["static_margin_pct"] or 0) > 0 else "bad"))
     else:
-        out.append(Para(["No centre of gravity given (the spec's weight position in its flight table): "
-                         "no static margin."], "note"))
+        out.append(Para(["No centre of gravity given (flight.weight_x_mm, flight.rider_from_mast_mm or --cg: "
+                         "one point, where the weight acts): no static margin."], "note"))
     if b["trim"]:
         names = b["pitch_surfaces"]
         header = [["speed km/h"], ["speed m/s"], ["attitude °"]]
@@ -142,6 +145,7 @@ def _balance(data) -> list:
                    ["static margin % MAC"]]
         if b["takeoff"]:
             header += [["below the takeoff estimate"]]
+        header += [["not trimmable because"]]
         rows = []
         for i, t in enumerate(b["trim"]):
             T = lambda *k, f=".1f": V(("balance", "trim", i) + k, f)  # noqa: E731
@@ -152,13 +156,14 @@ def _balance(data) -> list:
                     [T("static_margin_pct", f="+.1f")]]
             if b["takeoff"]:
                 row += [[T("below_takeoff_speed", f="str")]]
+            row += [[T("reason", f="str")]]
             rows.append(row)
         out.append(Table(header, rows, numeric=set(range(len(header))), caption=[
             "Trim (lift equal to weight) for ", B("mass_kg", "g"), " kg in ", B("water", "str"), " (density ",
             B("density_kg_m3", "g"), " kg/m³). Attitude: free stream to the datum x axis, positive nose up. "
             "Negative lift pushes down. Centre of pressure: net, of the lifting surfaces, positive aft of the "
             + ("mast reference" if mast else "datum origin (no mast in the spec)")
-            + ". Vortex lattice of ", B("panels", "d"), " panels."]))
+            + ". Vortex lattice of ", B("panels", "d"), " panels. Water: ", B("water_surface", "str"), "."]))
     if b["takeoff"]:
         out.append(Para(["Estimated takeoff: ", V(("balance", "takeoff", "speed_kmh"), ".1f"),
                          " km/h (", V(("balance", "takeoff", "speed_ms"), ".2f"), " m/s) at attitude ",
@@ -168,6 +173,18 @@ def _balance(data) -> list:
     out += _water(b)
     out.append(Bullets([[V(("balance", "notes", i), "str")] for i in range(len(b["notes"]))], "note"))
     return out
+
+
+def _warnings(b) -> list:
+    """The plausibility warnings (never silent): where the set leaves what a rider can ride."""
+    ws = b.get("warnings") or []
+    head = Heading(3, ["Plausibility warnings"], "warnings")
+    if not ws:
+        return [head, Para(["None: every trim speed trims, and the stabilizer's share, the travel of the centre "
+                            "of pressure, the mast move and the shim are within the stated limits."], "ok")]
+    return [head, Bullets([[V(("balance", "warnings", i, "message"), "str")] for i in range(len(ws))], "bad"),
+            Para(["Warnings, not refusals: every figure of the page is still given. The limits are common "
+                  "practice, no source (see the developer guide)."], "note")]
 
 
 def _water(b) -> list:
@@ -204,9 +221,15 @@ def _water(b) -> list:
                  [P("points", i, "power_w", f=".0f")], [P("points", i, "l_over_d")]] for i in range(len(pf["points"]))]
         out.append(Table([["speed km/h"], ["drag N"], ["drag kgf"], ["power W"], ["lift/drag"]], rows,
                          numeric={0, 1, 2, 3, 4}, caption=["Total drag of the trimmed set (first estimates). "]))
-        out.append(Para(["Usable envelope: from the takeoff estimate at ", P("envelope_kmh", 0), " km/h to first "
-                         "cavitation at ", P("envelope_kmh", 1), " km/h. These are estimates: test before relying "
-                         "on either end."], "caution"))
+        if len(pf.get("envelope_reasons") or []) == 2:
+            out.append(Para(["Usable envelope: from ", P("envelope_kmh", 0), " km/h (",
+                             P("envelope_reasons", 0, f="str"),
+                             ") to ", P("envelope_kmh", 1), " km/h (", P("envelope_reasons", 1, f="str"),
+                             "). These are estimates: test before relying on either end."], "caution"))
+        else:
+            out.append(Para(["Usable envelope: from the takeoff estimate at ", P("envelope_kmh", 0), " km/h to first "
+                             "cavitation at ", P("envelope_kmh", 1), " km/h. These are estimates: test before relying "
+                             "on either end."], "caution"))
         out.append(Figure("envelope", "lift split, drag and envelope against speed",
                           ["Lift of each surface and total drag against speed, trimmed, from takeoff to first "
                            "cavitation (shaded: the usable envelope)."]))

@@ -228,6 +228,8 @@ def _balance(hyd: dict | None) -> dict | None:
         "takeoff": hyd.get("takeoff"), "notes": hyd.get("notes", []),
         "free_surface": hyd.get("free_surface"), "cavitation": hyd.get("cavitation"),
         "performance": hyd.get("performance"), "stance": hyd.get("stance"),
+        "cg_source": hyd.get("cg_source"), "warnings": hyd.get("warnings") or [],
+        "water_surface": water.get("surface"),
     }
 
 

@@ -23,6 +23,10 @@ DEFAULT_CL_MAX = 1.1
 #: to hypersaline lakes (about 1,240); values from memory. Anything else is not water.
 FLUID_DENSITY_RANGE = (950.0, 1250.0)
 
+#: Default travel of the mast either way in its tracks, mm: tracks give a few cm (common
+#: practice, no source).
+DEFAULT_TRACK_TRAVEL_MM = 50.0
+
 #: Default vortex-lattice panels along the chord (uniform).
 DEFAULT_CHORD_PANELS = 6
 
@@ -37,7 +41,9 @@ class FlightSpec(BaseModel):
         min_length=1, description="speeds to trim at, km/h")
     fluid: Union[Literal["seawater", "freshwater"], Num] = Field(
         "seawater", description="seawater or freshwater (ITTC 2011, 15 °C), or a density in kg/m³")
-    weight_x_mm: Optional[DatumMM] = Field(None, description="datum x where the weight acts, if known")
+    weight_x_mm: Optional[DatumMM] = Field(
+        None, description="datum x where the weight acts, if known (or rider_from_mast_mm: the same point from the "
+                          "mast reference); gives the static margin")
     temperature_c: Literal[15, 20] = Field(
         15, description="water temperature for the ITTC 2011 table values, °C (15 or 20)")
     viscosity_m2s: Optional[Num] = Field(
@@ -64,7 +70,12 @@ class FlightSpec(BaseModel):
                                             "km/h (default: the middle of speeds_kmh)")
     rider_from_mast_mm: Optional[Num] = Field(
         None, ge=-2000.0, le=2000.0, description="where the rider's weight acts, mm along datum x from the mast "
-                                                 "reference (negative: ahead of the mast)")
+                                                 "reference (negative: ahead of the mast); the same point as "
+                                                 "weight_x_mm: gives the static margin and the mast move")
+    track_travel_mm: Num = Field(
+        DEFAULT_TRACK_TRAVEL_MM, gt=0.0, le=1000.0,
+        description="how far the mast can slide either way in its tracks, mm; a mast move beyond it is warned of "
+                    f"(default {DEFAULT_TRACK_TRAVEL_MM:g}, common practice, no source)")
     stabilizer_lift_kgf: Optional[Num] = Field(
         None, ge=-500.0, le=500.0, description="stabilizer lift wanted at the cruise speed, kgf (negative: "
                                                "down-force); the balance solves the shim that gives it")
@@ -73,6 +84,9 @@ class FlightSpec(BaseModel):
     def _one_water_level(self):
         if self.ride_height_mm is not None and self.depth_mm is not None:
             raise ValueError("give ride_height_mm or depth_mm, not both (each sets the still-water level)")
+        if self.weight_x_mm is not None and self.rider_from_mast_mm is not None:
+            raise ValueError("give weight_x_mm or rider_from_mast_mm, not both (each says where the weight acts: "
+                             "weight_x_mm in datum x, rider_from_mast_mm from the mast reference)")
         return self
 
     @field_validator("fluid", mode="before")

@@ -18,10 +18,12 @@ def loads(project, speed_kmh: float, load_factor: float, material, allowable_mpa
           side_force_n: float = 100.0) -> dict:
     """Loads and first estimates of every surface of ``project`` (a Project). Wings and
     stabilizers need the spec's ``[flight]`` mass; masts do not. Returns a JSON-able dict."""
+    from ..hydro.guards import dimension_warnings
     from .estimate import mast_estimate, stiffness_along, wing_estimate
 
     models = project.models
     notes = []
+    warnings = dimension_warnings(models)
     condition, wings = None, []
     lifting = [m for m in models if m.role in ("wing", "stabilizer") and m.orientation == "horizontal"]
     if lifting:
@@ -33,7 +35,8 @@ def loads(project, speed_kmh: float, load_factor: float, material, allowable_mpa
         cond, strips = loading_at(models, project.spec.flight, speed_kmh, load_factor)
         condition = dict(speed_kmh=cond.speed_kmh, load_factor=cond.load_factor, mass_kg=cond.mass_kg,
                          density_kg_m3=cond.density_kg_m3, attitude_deg=cond.attitude_deg,
-                         total_lift_n=cond.lift_n)
+                         total_lift_n=cond.lift_n, water=cond.water, cl_peak=cond.cl_peak, cl_max=cond.cl_max)
+        warnings += cond.warnings or []
         by_name = {m.name: m for m in models}
         for st in strips:
             m = by_name[st.name]
@@ -51,7 +54,7 @@ def loads(project, speed_kmh: float, load_factor: float, material, allowable_mpa
                  "shell J in the check)")
     return {"geomgen_version": __version__, "spec": project.name, "first_estimate": FIRST_ESTIMATE,
             "material": material.as_dict(), "allowable_mpa": allowable_mpa, "condition": condition,
-            "surfaces": wings, "masts": masts, "notes": notes, "caution": CAUTION}
+            "surfaces": wings, "masts": masts, "notes": notes, "warnings": warnings, "caution": CAUTION}
 
 
 def format_loads(res: dict) -> str:
@@ -65,6 +68,7 @@ def format_loads(res: dict) -> str:
     if c:
         out.append(f"condition: {c['speed_kmh']:g} km/h, load factor {c['load_factor']:g} on {c['mass_kg']:g} kg: "
                    f"total lift {c['total_lift_n']:.0f} N at attitude {c['attitude_deg']:.2f}°")
+        out.append(f"water: {c['water']}")
     allow = res["allowable_mpa"]
     out.append(f"allowable stress: {allow:g} MPa (given by the user)" if allow else
                "allowable stress: not given (no margin computed)")
@@ -89,6 +93,8 @@ def format_loads(res: dict) -> str:
         if "first_bending_hz_bare_in_air" in m:
             out.append(f"  first bending frequency {m['first_bending_hz_bare_in_air']:.1f} Hz: the bare mast in air, "
                        "nothing at its end (wings, fuselage and the water around it lower it a lot)")
+    if res.get("warnings"):
+        out += [""] + [f"warning: {w['message']}" for w in res["warnings"]]
     out += [""] + [f"note: {n}" for n in res["notes"]]
     out += ["", "CAUTION: " + res["first_estimate"], "CAUTION: " + res["caution"]]
     return "\n".join(out)

@@ -86,7 +86,7 @@ def variant_figures(text: str, source: str = "<variant>", *, cruise_kmh: float |
     if perf is not None and perf.takeoff_kmh is not None and math.isfinite(perf.takeoff_kmh):
         out["takeoff_kmh"] = perf.takeoff_kmh
     point = next((p for p in (perf.points if perf is not None else []) if abs(p["speed_kmh"] - v) < 1e-9), None)
-    if t is None:
+    if t is None or not t.trimmable:  # no trim at that speed: no trimmed figures (the reason is in the balance)
         return out
     weight = sum(t.lift_n.values())
     out["wing_lift_n"] = sum(v for k, v in t.lift_n.items() if roles.get(k) == "wing")
