@@ -1,5 +1,5 @@
 """Time the vortex-lattice neutral point of the demo set against panel count, and the
-balance with free surface, cavitation and drag (issue 11 targets).
+balance with free surface, cavitation and drag (its targets).
 
 Usage: ``.venv/bin/python bench/bench_hydro.py [SPEC]`` (default specs/demo-foilset.toml, else
 /tmp/foil.toml). Prints, per panel count, the lattice size, the wall time of
@@ -36,7 +36,7 @@ def best_of(fn, n: int = 3) -> float:
 
 
 def print_water_figures(spec_path: Path) -> None:
-    """Issue 11 targets: the demo balance with free surface and cavitation (<= 2 s on 2 cores),
+    """Targets: the demo balance with free surface and cavitation (<= 2 s on 2 cores),
     the 2D panel method (<= 20 ms a section), the lattice memory budget."""
     from geomgen.defaults import LATTICE_MATRICES, LATTICE_MEMORY_BUDGET_BYTES
     from geomgen.hydro import analyse_spec

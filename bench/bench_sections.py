@@ -1,8 +1,8 @@
 """Benchmark: section properties of the demo set at every station, solid and shell.
 
 Prints seconds for the intended sections (from the model) and for slices of the model's own
-B-spline skin (what the check slices from the written STEP, without the kernel). Target
-(issue 12): both together <= 3 s on 2 cores. Run: python bench/bench_sections.py
+B-spline skin (what the check slices from the written STEP, without the kernel). Target:
+both together <= 3 s on 2 cores. Run: python bench/bench_sections.py
 """
 
 from __future__ import annotations

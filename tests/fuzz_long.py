@@ -1,4 +1,4 @@
-"""The long run of issue 15's property: ≥ 10,000 generated specs through the command line.
+"""The long run of the command-line property: ≥ 10,000 generated specs through the command line.
 
     python tests/fuzz_long.py --cases 10000 --jobs 2 --log fuzz-long.tsv
 

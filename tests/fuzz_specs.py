@@ -149,7 +149,7 @@ BAD_VALUES = [
 
 
 def run_cli_case(p: dict, folder) -> tuple[str, str, str]:
-    """Issue 15's property for one generated spec, through the command line (``geomgen check``
+    """The command-line property for one generated spec, through the command line (``geomgen check``
     in-process): returns (outcome, first line or tail of the output, problem). The problem is
     empty when the spec was either refused before anything was written (exit 2 or 3, the part
     or the field named) or built and its written files checked clean (exit 0: these specs carry

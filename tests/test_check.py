@@ -185,7 +185,7 @@ def test_check_json_and_reuse(tmp_path):
 
 
 def test_check_without_a_mast_states_positions_from_the_datum_origin(tmp_path, write_spec):
-    """A wing alone with a [flight] table is a normal spec (issue 11): the check writes its
+    """A wing alone with a [flight] table is a normal spec: the check writes its
     record, and the balance lines place the neutral point and the centre of pressure from the
     datum origin (there is no mast to measure from)."""
     from geomgen.check.text import format_terminal

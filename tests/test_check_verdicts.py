@@ -1,4 +1,4 @@
-"""The check never calls a correct file faulty (issue 15): each case below was a false
+"""The check never calls a correct file faulty: each case below was a false
 "GEOMETRY FAULT" before; the files were right and the verdict wrong."""
 
 from __future__ import annotations

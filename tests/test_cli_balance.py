@@ -23,7 +23,7 @@ def test_balance_text_and_json():
 
 
 def test_demo_is_a_plausible_balanced_set():
-    """Issue 11. Common practice, no source: at cruise (22 km/h in the demo) the stabilizer
+    """Common practice, no source: at cruise (22 km/h in the demo) the stabilizer
     pushes down a few % of the weight (1-5 %); the balance point (net centre of pressure)
     moves a few cm over the speed range (under 6 cm) and stays ahead of the neutral point
     (stable in pitch) at every speed; the attitude stays between 0 and 10°."""
@@ -45,7 +45,7 @@ def test_balance_spec_error_exit_2(tmp_path):
 
 
 def test_balance_reports_water_drag_envelope_and_stance(tmp_path):
-    """Issue 11: the free surface, cavitation, drag, envelope and stance reach the text, the
+    """The free surface, cavitation, drag, envelope and stance reach the text, the
     JSON and the written report/ files, each with its caution."""
     r = CliRunner().invoke(main, ["balance", str(DEMO), "-o", str(tmp_path)])
     assert r.exit_code == 0, r.output

@@ -1,5 +1,5 @@
 """Control characters never reach an output: stripped from coordinate-file name lines (the
-SVG stays well-formed XML), refused in spec text naming the field (issue 16)."""
+SVG stays well-formed XML), refused in spec text naming the field."""
 
 from __future__ import annotations
 

@@ -1,4 +1,4 @@
-"""One writer per output folder, and files geomgen did not write left alone (issue 16)."""
+"""One writer per output folder, and files geomgen did not write left alone."""
 
 from __future__ import annotations
 

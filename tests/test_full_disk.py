@@ -1,5 +1,5 @@
 """A full disk during check, report and parts: exit 3 "cannot write" naming the file, no
-traceback, earlier outputs byte-identical, no lock or staging folder left (issue 16)."""
+traceback, earlier outputs byte-identical, no lock or staging folder left."""
 
 from __future__ import annotations
 

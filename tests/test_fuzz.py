@@ -108,7 +108,7 @@ def _log(outcome: str, detail: str = "") -> None:
 @settings(max_examples=5 if PROFILE == "fast" else CLI_CASES, derandomize=PROFILE == "fast")
 @given(spec_params(files=True))
 def test_every_spec_is_refused_with_its_cause_or_checks_clean(tmp_path_factory, params):
-    """Issue 15, through the command line: a plausible spec is either refused before anything
+    """Through the command line: a plausible spec is either refused before anything
     is written (exit 2 or 3, the part or the field named) or builds and its written files check
     clean (exit 0: no geometry fault; these specs carry no expectations). The long run of
     10,000 and more goes through ``tests/fuzz_long.py`` (same judge, several processes)."""
@@ -214,7 +214,7 @@ HOSTILE = st.one_of(
 @given(st.sampled_from(NUMERIC_FIELDS), HOSTILE)
 def test_hostile_numbers_are_refused_naming_the_field(where, bad):
     """Any hostile value in any number of the spec: exit 2 naming the file and the field,
-    no traceback, nothing written (issue 16)."""
+    no traceback, nothing written."""
     import tempfile
     from pathlib import Path
 

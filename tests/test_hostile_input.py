@@ -1,5 +1,5 @@
 """Hostile and meaningless input: exit 2 naming the file and field, never a traceback or a
-hang (issue 16)."""
+hang."""
 
 from __future__ import annotations
 

@@ -124,7 +124,7 @@ def test_swept_wing_lift_slope_against_helmbold(aspect, taper, sweep_qc):
 
 # -- reference figures ---------------------------------------------------------------------
 def test_balance_reference_figures_are_the_intended_figures_with_a_round_tip():
-    """Issue 11: one set of planform figures for build, check, balance and report. A
+    """One set of planform figures for build, check, balance and report. A
     rectangle of aspect ratio 6 closed by a round tip (S 2713.7 cm², not the 2400 cm²
     between stations); the set's figures and coefficients use those figures."""
     from geomgen.geometry.figures import intended_figures
@@ -201,7 +201,7 @@ def test_incidence_shifts_zero_lift_attitude_one_for_one():
 def test_flat_wing_incidence_and_attitude_agree(aspect):
     """Linear lifting-surface theory (Katz & Plotkin, Low-Speed Aerodynamics, ch. 12): a flat
     wing turned by i and the free stream turned by i are the same problem to first order.
-    Lift (force) agrees within 0.15 % at 4° (issue 11: it was 3.3 % high at A = 6), and what
+    Lift (force) agrees within 0.15 % at 4° (it was 3.3 % high at A = 6), and what
     is left is second order (it grows as i², ratio 2°→4° about 4). CL is on the planform
     area in the surface's reference plane, which the incidence does not change, so the CL
     ratio is the lift ratio."""

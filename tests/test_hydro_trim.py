@@ -187,7 +187,7 @@ def test_result_is_json_and_the_report_has_units_and_the_caution(base):
 
 
 def test_balance_without_a_mast_states_positions_from_the_datum_origin():
-    """No mast (issue 11): the text gives datum x from the origin and no empty mast columns."""
+    """No mast: the text gives datum x from the origin and no empty mast columns."""
     models = models_of(surface("w", "wing", trapezoid(300.0, 150.0, 100.0), position=(-200.0, 0.0, 0.0)),
                        surface("s", "stabilizer", trapezoid(120.0, 60.0, 40.0), position=(300.0, 0.0, 0.0),
                                incidence=-1.0))

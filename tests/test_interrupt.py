@@ -1,5 +1,5 @@
 """Nothing lost at any instant: a commit stopped anywhere leaves the previous set or the new
-one, whole, once the next run has recovered (issue 16). Real signals in a subprocess, and a
+one, whole, once the next run has recovered. Real signals in a subprocess, and a
 forked child stopped at every single step of the commit."""
 
 from __future__ import annotations

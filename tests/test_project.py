@@ -41,7 +41,7 @@ def counters(monkeypatch) -> dict:
 
 def solves_of_one_analysis(monkeypatch) -> int:
     """Lattice solves of one analysis of the demo (the free surface and its deep-water twin
-    and the shim's changed sets are lattices of their own, issue 11)."""
+    and the shim's changed sets are lattices of their own)."""
     from geomgen.hydro import analyse_spec
     from geomgen.spec import load_spec
 

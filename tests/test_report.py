@@ -365,7 +365,7 @@ def test_palette_tells_things_apart_without_colour():
 
 
 def test_balance_without_a_mast_shows_the_centre_of_pressure_from_the_datum_origin(tmp_path):
-    """No mast in the spec (issue 11): the trim table gives the centre of pressure as datum x
+    """No mast in the spec: the trim table gives the centre of pressure as datum x
     from the origin instead of empty mast columns."""
     text = DEMO.read_text()
     text = text[:text.index("# Mast: vertical")] + text[text.index("[flight]"):]

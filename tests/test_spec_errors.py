@@ -183,7 +183,7 @@ def test_found_by_the_property_a_sharp_edged_blend_of_a_coordinate_file_builds(t
 
 def test_a_crossing_section_is_refused_naming_its_stations_and_what_passes(write_spec, monkeypatch):
     """The refusal names the surface, where (station or the two stations around it) and what
-    would pass (issue 15: every refusal says what to change)."""
+    would pass (every refusal says what to change)."""
     import geomgen.geometry.model as gm
 
     p = write_spec(wing_spec(te=0.0, mirror=False))
@@ -196,7 +196,7 @@ def test_a_crossing_section_is_refused_naming_its_stations_and_what_passes(write
 
 def test_a_trailing_edge_too_thick_between_stations_names_both_stations(write_spec):
     """A smooth chord curve dips between stations; the trailing edge it cannot carry there is
-    refused with the place between the two stations named (issue 15)."""
+    refused with the place between the two stations named."""
     st = [dict(y=0, chord=200), dict(y=300, chord=150), dict(y=400, chord=20), dict(y=450, chord=25)]
     p = write_spec(wing_spec(te=0.5, mirror=False, interpolation="smooth", stations=st, section='naca = "0006"'))
     with pytest.raises(SpecError) as exc:

@@ -1,5 +1,5 @@
 """Limits no real design needs, checked before any work starts, each message naming the field
-and the limit (issue 16; listed in README's limits table)."""
+and the limit (listed in README's limits table)."""
 
 from __future__ import annotations
 

@@ -1,5 +1,5 @@
 """Every number in a spec finite, of the right type and in a stated range; accepted but
-meaningless values refused (issue 16). Exit 2 naming the file and the field, nothing written."""
+meaningless values refused. Exit 2 naming the file and the field, nothing written."""
 
 from __future__ import annotations
 

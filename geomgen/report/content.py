@@ -188,7 +188,7 @@ def _warnings(b) -> list:
 
 
 def _water(b) -> list:
-    """Free surface, cavitation, drag and envelope, and where the rider stands (issue 11)."""
+    """Free surface, cavitation, drag and envelope, and where the rider stands."""
     out: list = []
     fs, cv, pf, st = b.get("free_surface"), b.get("cavitation"), b.get("performance"), b.get("stance")
     if fs:
