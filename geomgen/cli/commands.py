@@ -81,7 +81,7 @@ def balance(spec, out_dir, cg_x, sideslip, as_json):
         from ..outputs import Output, output_name
         from ..outputs import inputs as made_from
 
-        made = made_from.set_geometry(project.spec) + made_from.flight(project.spec)
+        made = made_from.set_geometry(project.spec, made_from.LOFT_ONLY) + made_from.flight(project.spec)
         done = project.write("balance", [
             Output(output_name(project.name, "balance", suffix=".txt"), "text", text,
                    "what the balance command printed: neutral point, lift split, trim", made),

@@ -127,8 +127,10 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
                 lambda p, pn=pn, side=side, shop=shop: gcode.write_panel_gcode(pn, p, shop=shop, spec_name=set_name,
                                                                                side=side),
                 f"{m.name}: four-axis hot-wire G-code of one foam panel (towers X/Y and U/V)"))
-        for o in outputs[first:]:  # a surface's drawings: its geometry and its [surface.shop]
-            o.inputs = made_from.geometry(spec, m.name) + made_from.tables(spec, m.name, "shop")
+        # a surface's drawings: its geometry (drawn in its own frame, not lofted) and its [surface.shop]
+        for o in outputs[first:]:
+            o.inputs = made_from.geometry(spec, m.name, made_from.PLACEMENT + made_from.LOFT_ONLY) + \
+                made_from.tables(spec, m.name, "shop")
         summaries.append(SurfaceSummary(m.name, len(cuts), sum(len(t.x_pct) for t in tables), len(panels),
                                         shop.kerf_mm, max((p.mid_deviation for p in panels), default=0.0),
                                         [f"{m.name} panel y = {p.y_a:g} .. {p.y_b:g} mm: the straight hot-wire cut "
@@ -141,7 +143,8 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
     res.seconds = time.perf_counter() - t0
     outputs.append(Output(output_name(set_name, "drawings", suffix=".txt"), "text",
                           lambda: format_shop_summary(res, for_file=True), "what the drawings command wrote, per surface",
-                          made_from.set_geometry(spec) + made_from.table_of_all(spec, "shop")))
+                          made_from.set_geometry(spec, made_from.PLACEMENT + made_from.LOFT_ONLY) +
+                          made_from.table_of_all(spec, "shop")))
     done = project.write("drawings", outputs, say)
     res[:] = done.files  # the summary file too
     res.notes = done.notes()

@@ -95,10 +95,19 @@ def _surface(spec, name: str):
     return next(s for s in spec.surface if s.name == name)
 
 
-def geometry(spec, name: str) -> list[str]:
-    """Inputs of one surface's solid and mesh: its geometry fields and the sections it uses."""
+#: Geometry fields only the solid and the mesh read (the loft's sections per half span).
+LOFT_ONLY = ("loft_sections",)
+
+#: Geometry fields drawings do not read: they are drawn in the part's own frame, wherever it sits.
+PLACEMENT = ("position",)
+
+
+def geometry(spec, name: str, without=()) -> list[str]:
+    """Inputs of one surface's solid and mesh: its geometry fields and the sections it uses
+    (``without``: fields the caller's output does not read, e.g. :data:`LOFT_ONLY`)."""
     sf = _surface(spec, name)
-    keys = [f"surface[{name}].{f}" for f in type(sf).model_fields if f != "name" and f not in SURFACE_TABLES]
+    keys = [f"surface[{name}].{f}" for f in type(sf).model_fields
+            if f != "name" and f not in SURFACE_TABLES and f not in without]
     used = dict.fromkeys(x for st in sf.station for x in (st.section, st.blend.section if st.blend else None) if x)
     return keys + [f"sections.{s}" for s in used]
 
@@ -113,10 +122,10 @@ def table_of_all(spec, *which: str) -> list[str]:
     return [k for sf in spec.surface for k in tables(spec, sf.name, *which)]
 
 
-def set_geometry(spec) -> list[str]:
+def set_geometry(spec, without=()) -> list[str]:
     """Inputs of a file about the whole set's geometry (assembly, build summary): every
     surface's geometry and every section (the build notes a fit of each coordinate file)."""
-    keys = ["surfaces"] + [k for sf in spec.surface for k in geometry(spec, sf.name)]
+    keys = ["surfaces"] + [k for sf in spec.surface for k in geometry(spec, sf.name, without)]
     return list(dict.fromkeys(keys + [f"sections.{s}" for s in spec.sections]))
 
 
