@@ -155,6 +155,9 @@ def test_mass_change_keeps_solids_and_stabilizer_edit_only_its_files(tmp_path):
     assert data["stale_outputs"] == []
     by_name = {f["name"]: f for f in data["files"]}
     assert solids <= set(by_name) and all(by_name[n]["current"] for n in solids)
+    text = CliRunner().invoke(main, ["check", str(spec), "-o", str(out)]).output
+    assert f"cad/{SET}-stabilizer.step  [build]  current" in text
+    assert f"report/{SET}-balance.json  [balance]  current" in text
 
     edit(spec, "chord = 42.0", "chord = 45.0")  # the stabilizer
     st = states(spec, out)
@@ -162,7 +165,7 @@ def test_mass_change_keeps_solids_and_stabilizer_edit_only_its_files(tmp_path):
     assert stale == ({n for n in files(out) if "-stabilizer" in n}
                      | {f"cad/{SET}-assembly.step", f"report/{SET}-build.txt", f"report/{SET}-drawings.txt",
                         f"report/{SET}-balance.txt", f"report/{SET}-balance.json",
-                        f"report/{SET}-check.md", f"report/{SET}-check.json"})
+                        f"report/{SET}-check.md", f"report/{SET}-check.json"})  # as the spec is now
     others = {n for n in files(out) if n.startswith("drawings/") and "-stabilizer" not in n}
     text = CliRunner().invoke(main, ["check", str(spec), "-o", str(out)]).output
     # check rebuilds the solids (its own inputs changed); the rest of the stale files go, named

@@ -89,6 +89,9 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
         notes += build(project, progress=progress).notes
         modified = []
     states = file_states(out, project.name, info)  # after the build: what is still stale, and why
+    if write_record:  # the check's own record is written again now
+        own = {output_name(project.name, "check", suffix=s) for s in (".md", ".json")}
+        states = [f for f in states if f["name"] not in own]
     stale = [f["name"] for f in states if not f["current"]]
     t1 = time.perf_counter()
 
