@@ -331,3 +331,56 @@ def test_each_field_stales_exactly_the_outputs_that_read_it(tmp_path):
                                                           for f, g in allowed))
                    for w, names in extra.items()}
     assert {w: n for w, n in unexplained.items() if n} == {}
+
+
+@pytest.mark.slow
+def test_adding_shop_part_tables_keeps_the_solids_and_the_check_record(tmp_path):
+    """Add [surface.mount] and [surface.printing] to a built and checked set and run parts:
+    the part's STEP and STL and the check record stay current."""
+    from conftest import ROOT
+
+    full = (ROOT / "specs" / "demo-stabilizer-shop.toml").read_text()
+    bare = full[:full.index("[surface.mount]")]
+    tables = full[full.index("[surface.mount]"):full.index("[surface.laminate]")]
+    spec, out = tmp_path / "shop.toml", tmp_path / "out"
+    spec.write_text(bare)
+    run("build", spec, "-o", out)
+    run("check", spec, "-o", out)
+    before = files(out)
+    kept = {n for n in before if n.startswith(("cad/", "print/")) or "-check." in n}
+    assert len(kept) >= 4
+    spec.write_text(bare + tables)
+    res = run("parts", spec, "-o", out)
+    assert "made from the earlier spec" not in res.output, res.output
+    assert kept <= files(out)
+    st = states(spec, out)
+    assert all(st[n]["current"] for n in kept)
+
+
+def test_changed_inputs_of_old_and_other_version_entries():
+    from geomgen import __version__
+    from geomgen.outputs.inputs import describe
+    from geomgen.outputs.manifest import changed_inputs
+
+    info = {"spec_sha256": "a", "input_digests": {"surface[w].station": "1", "flight.mass_kg": "2"}}
+    old = {"geomgen_version": __version__, "spec_sha256": "b"}  # recorded without fingerprints
+    assert changed_inputs(old, info) == ["spec"]
+    assert changed_inputs({**old, "spec_sha256": "a"}, info) == []
+    assert changed_inputs({**old, "geomgen_version": "0.0.1", "inputs": {}}, info) == ["geomgen"]
+    entry = {"geomgen_version": __version__, "inputs": {"surface[w].station": "1", "surface[x].position": "9"}}
+    assert changed_inputs(entry, info) == ["surface[x].position"]  # a surface that is gone
+    assert describe(["surface[w].station", "surface[w].position", "flight.mass_kg", "sections.a"]) == \
+        'surface "w" station and position; [flight] mass_kg; section "a"'
+
+
+def test_an_edited_stale_file_is_current_again_when_its_input_comes_back(tmp_path):
+    spec, out = demo(tmp_path), tmp_path / "out"
+    run("drawings", spec, "-o", out)
+    csv = out / "drawings" / f"{SET}-stabilizer-offsets.csv"
+    csv.write_text(csv.read_text() + "# my note\n")
+    edit(spec, "incidence = 2.5", "incidence = 2.0")
+    run("balance", spec, "-o", out)
+    edit(spec, "incidence = 2.0", "incidence = 2.5")
+    run("balance", spec, "-o", out)
+    line = next(ln for ln in (out / "geomgen-index.md").read_text().splitlines() if "stabilizer-offsets.csv" in ln)
+    assert "STALE" not in line and line.endswith("| current |")

@@ -169,6 +169,8 @@ class Staging:
             if name in self.names or e.get("set", _set_of(e)) != info["set"]:
                 continue
             changed = changed_inputs(e, info)
+            if not changed and e.get("stale"):  # its inputs are back as they were: current again
+                entries[name] = {k: v for k, v in e.items() if k not in ("stale", "stale_inputs")}
             if changed:
                 why[name] = changed
                 if file_matches(self.out_dir / name, e):
