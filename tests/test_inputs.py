@@ -384,3 +384,17 @@ def test_an_edited_stale_file_is_current_again_when_its_input_comes_back(tmp_pat
     run("balance", spec, "-o", out)
     line = next(ln for ln in (out / "geomgen-index.md").read_text().splitlines() if "stabilizer-offsets.csv" in ln)
     assert "STALE" not in line and line.endswith("| current |")
+
+
+def test_a_comparison_with_another_spec_goes_stale_when_that_file_changes(tmp_path):
+    spec, out = demo(tmp_path), tmp_path / "out"
+    other = tmp_path / "other.toml"
+    other.write_text(DEMO.read_text().replace("mass_kg = 85.0", "mass_kg = 90.0"))
+    run("compare", spec, "--with", other, "-o", out)
+    name = f"studies/{SET}-compare.csv"
+    assert states(spec, out)[name]["current"]
+    other.write_text(other.read_text().replace("mass_kg = 90.0", "mass_kg = 95.0"))
+    st = states(spec, out)[name]
+    assert not st["current"] and st["changed_words"] == "the file other.toml"
+    res = run("balance", spec, "-o", out)
+    assert "the file other.toml changed: removed" in res.output

@@ -11,7 +11,9 @@ Keys, as they are named in messages:
 * ``surface[<name>].<field>``: one field of a surface (``station``, ``position``, ``shop``, …);
 * ``sections.<name>``: a named section and, for a coordinate file, the file's bytes;
 * ``surfaces``: which surfaces the set has, in order (set-level files depend on it);
-* ``flight.<field>`` (or ``flight`` when the spec has no ``[flight]``), ``datum.<field>``.
+* ``flight.<field>`` (or ``flight`` when the spec has no ``[flight]``), ``datum.<field>``;
+* ``file:<absolute path>``: another file an output was made from (``compare --with``),
+  fingerprinted from its bytes whenever it is compared.
 
 Which keys an output depends on is said by the function that makes it, with the helpers
 below; a surface's *geometry* is every field of the surface except the tables other
@@ -91,6 +93,18 @@ def _digests(spec) -> dict[str, str]:
     return out
 
 
+def current(key: str, digests: dict[str, str]) -> str | None:
+    """The fingerprint of input ``key`` now: from ``digests``, or a named file's bytes."""
+    if key.startswith("file:"):
+        return _file_digest(Path(key[len("file:"):]))
+    return digests.get(key)
+
+
+def files(paths) -> list[str]:
+    """Keys of other files an output was made from (their bytes are fingerprinted)."""
+    return [f"file:{Path(p).resolve()}" for p in paths]
+
+
 def _surface(spec, name: str):
     return next(s for s in spec.surface if s.name == name)
 
@@ -149,6 +163,8 @@ def describe(keys) -> str:
             groups.setdefault(f'surface "{owner}"', []).append(field)
         elif k.startswith("sections."):
             groups.setdefault(f'section "{k[len("sections."):]}"', []).append("")
+        elif k.startswith("file:"):
+            groups.setdefault(f"the file {Path(k[len('file:'):]).name}", []).append("")
         elif k == "surfaces":
             groups.setdefault("the list of surfaces", []).append("")
         elif "." in k:

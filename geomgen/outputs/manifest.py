@@ -55,7 +55,9 @@ def entry_info(info: dict, name: str) -> dict:
     if digests is not None:
         keys = (info.get(_INPUTS_OF) or {}).get(name)
         keys = list(digests) if keys is None else keys
-        rec["inputs"] = {k: digests.get(k, "absent") for k in keys}
+        from .inputs import current
+
+        rec["inputs"] = {k: current(k, digests) or "absent" for k in keys}
     return rec
 
 
@@ -72,7 +74,9 @@ def changed_inputs(entry: dict, info: dict) -> list[str]:
     recorded, digests = entry.get("inputs"), info.get(_DIGESTS)
     if not isinstance(recorded, dict) or digests is None:
         return [] if entry.get("spec_sha256") == info.get("spec_sha256") else ["spec"]
-    return [k for k, d in recorded.items() if digests.get(k) != d]
+    from .inputs import current
+
+    return [k for k, d in recorded.items() if current(k, digests) != d]
 
 
 def stale_notes(removed: list[str], kept: list[str], why: dict[str, list[str]]) -> list[str]:
