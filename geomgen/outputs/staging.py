@@ -8,10 +8,11 @@ Ctrl-C before the switch puts every previous output back; a kill at any instant 
 either the previous set or the new one, whole, once the next run has recovered.
 
 The manifest (``geomgen-manifest.json``) records, for every file geomgen wrote: name, size,
-SHA-256, geomgen version, spec file, spec hash, output set and the command that made it.
-When a command commits, files of the same set made from another spec (or another geomgen
-version) are *stale*: they no longer describe the spec, so they are removed (they are
-geomgen's own and byte-identical to what it wrote) and the caller is told. A stale file
+SHA-256, geomgen version, spec file, spec hash, output set, the command that made it and
+the fingerprints of the inputs it was made from (:mod:`.inputs`). When a command commits,
+files of the same set one of whose own inputs changed (or made by another geomgen version)
+are *stale*: they no longer describe the spec, so they are removed (they are geomgen's own
+and byte-identical to what it wrote) and the caller is told which input changed. A stale file
 edited since geomgen wrote it is not geomgen's any more: it is left, and reported.
 Refused, with nothing written: a file the manifest does not list, a manifest or index
 geomgen did not write, a link or a linked folder where an output goes, and an output edited
