@@ -11,6 +11,7 @@ from typing import Callable
 from . import CAUTION, __version__
 from .geometry.figures import Figures, intended_figures
 from .outputs import Output, output_name
+from .outputs import inputs as made_from
 from .project import Project
 
 #: format -> (file suffix, what the index says the file is for)
@@ -50,8 +51,8 @@ def build_names(project: Project, formats=("step", "stl"), assembly: bool = True
 
 
 def freshness_info(project: Project) -> dict:
-    """What makes build outputs current: the spec's bytes and the mesh tolerance (and version)."""
-    return {"spec_sha256": project.spec_sha256, "stl_tol_mm": project.stl_tol}
+    """The option a build output is made with besides its inputs: the mesh tolerance."""
+    return {"stl_tol_mm": project.stl_tol}
 
 
 def build(project, out_dir=None, *, formats=("step", "stl"), stl_tol: float | None = None, assembly: bool = True,
@@ -77,13 +78,16 @@ def build(project, out_dir=None, *, formats=("step", "stl"), stl_tol: float | No
     names = build_names(project, formats, assembly)
     options = {"stl_tol": project.stl_tol, "assembly_name": project.name}
     outputs = []
+    spec = project.spec
     for s, res in zip(shapes, results):
         for fmt, name in zip(formats, names[s.name]):
-            outputs.append(Output(name, fmt, ([s], options), f"{s.name}: {BUILD_FORMATS[fmt][1]}"))
+            outputs.append(Output(name, fmt, ([s], options), f"{s.name}: {BUILD_FORMATS[fmt][1]}",
+                                  made_from.geometry(spec, s.name)))
             res.files.append(project.out_dir / name)
     if "assembly" in names:
         outputs.append(Output(names["assembly"][0], "step", (shapes, options),
-                              "every surface in one STEP, each a named component in the datum frame"))
+                              "every surface in one STEP, each a named component in the datum frame",
+                              made_from.set_geometry(spec)))
     from .hydro.guards import dimension_warnings
 
     result = BuildResult(project.name, project.out_dir, results, [], 0.0, fit_notes(project),
@@ -92,7 +96,7 @@ def build(project, out_dir=None, *, formats=("step", "stl"), stl_tol: float | No
     result.files = [project.out_dir / o.name for o in outputs]
     result.seconds = time.perf_counter() - t0
     outputs.append(Output(summary_name, "text", lambda: format_build_summary(result, for_file=True),
-                          "what the build wrote and the intended figures per surface"))
+                          "what the build wrote and the intended figures per surface", made_from.set_geometry(spec)))
     done = project.write("build", outputs, say, **freshness_info(project))
     result.files = done.files  # the summary too
     result.notes += done.notes()

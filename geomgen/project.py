@@ -109,15 +109,25 @@ class Project:
             self._memo[key] = make()
         return self._memo[key]
 
+    @property
+    def input_digests(self) -> dict[str, str]:
+        """key -> fingerprint of every input of the spec (see :mod:`geomgen.outputs.inputs`)."""
+        from .outputs.inputs import digests
+
+        return digests(self.spec)
+
     def output_info(self, command: str, **extra) -> dict:
-        """What the manifest records with each file a command writes."""
+        """What the manifest records with each file a command writes (and the fingerprints of
+        the spec's inputs now, so a commit knows which earlier files are stale)."""
         return {"set": self.name, "spec": self.spec_path.name, "spec_sha256": self.spec_sha256,
-                "command": command, **extra}
+                "command": command, "input_digests": self.input_digests, **extra}
 
     def write(self, command: str, outputs: list, say=None, **extra):
         """Write ``outputs`` of ``command`` into the output set, whole or not at all, with this
-        project's options (see :func:`geomgen.outputs.write_set`)."""
+        project's options (see :func:`geomgen.outputs.write_set`). Each file records the
+        fingerprints of its own ``Output.inputs`` (all of the spec where not given)."""
         from .outputs import write_set
 
-        return write_set(self.out_dir, outputs, self.output_info(command, **extra), say,
-                         overwrite_edited=self.overwrite_edited)
+        info = self.output_info(command, **extra)
+        info["inputs_of"] = {o.name: o.inputs for o in outputs if o.inputs is not None}
+        return write_set(self.out_dir, outputs, info, say, overwrite_edited=self.overwrite_edited)

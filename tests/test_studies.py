@@ -176,6 +176,9 @@ def test_the_report_carries_the_comparison_made_from_the_same_spec(tmp_path):
     assert c["labels"] == table["labels"] and c["rows"][1]["stab_lift_n"] == table["rows"][1]["stab_lift_n"]
     blocks = comparison_blocks({"comparison": c})
     assert isinstance(blocks[1], PageTable) and len(blocks[1].header) == 3
+    assert "22 km/h (the spec's cruise_kmh), mass 85 kg, seawater" in c["condition"]
     changed = tmp_path / "changed.toml"
-    changed.write_text(DEMO.read_text() + "\n# an edit\n")
+    changed.write_text(DEMO.read_text() + "\n# a comment: the comparison still holds\n")
+    assert _comparison(Project(changed, out)) == c
+    changed.write_text(DEMO.read_text().replace("mass_kg = 85.0", "mass_kg = 90.0"))
     assert _comparison(Project(changed, out)) is None

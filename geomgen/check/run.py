@@ -10,7 +10,8 @@ from .. import CAUTION, __version__
 from ..errors import CheckFailed, ExportError, GeomgenError
 from ..geometry.figures import intended_figures
 from ..geometry.slices import Frame
-from ..outputs import Output, output_name, output_state, stale_outputs
+from ..outputs import Output, file_states, output_name, output_state
+from ..outputs import inputs as made_from
 from ..project import Project
 from .compare import Record, compare_part, station_records
 from .sections import section_records
@@ -27,7 +28,8 @@ class CheckResult:
     stl_tol: float = 0.05
     record_files: list = field(default_factory=list)
     modified: list = field(default_factory=list)  # outputs changed since geomgen wrote them
-    stale: list = field(default_factory=list)  # outputs of this set made from another spec or version
+    stale: list = field(default_factory=list)  # outputs of this set one of whose inputs changed
+    files: list = field(default_factory=list)  # every file of the set: current, or which inputs changed
     notes: list = field(default_factory=list)
     balance: dict | None = None  # vortex-lattice summary when the spec has a [flight] table
     balance_skipped: str | None = None  # why there is no balance although [flight] was given
@@ -48,7 +50,7 @@ class CheckResult:
     def as_dict(self) -> dict:
         return {"geomgen_version": __version__, "spec": self.spec_name, "out_dir": str(self.out_dir),
                 "built": self.built, "ok": self.ok, "modified_since_written": self.modified,
-                "stale_outputs": self.stale, "notes": self.notes, "stl_tol_mm": self.stl_tol,
+                "stale_outputs": self.stale, "files": self.files, "notes": self.notes, "stl_tol_mm": self.stl_tol,
                 "parts": {k: dict(v) for k, v in self.parts.items()},
                 "records": [r.as_dict() for r in self.records], "balance": self.balance,
                 "balance_skipped": self.balance_skipped, "seconds": self.seconds, "caution": CAUTION}
@@ -88,15 +90,20 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
     t0 = time.perf_counter()
     out = project.out_dir
     names = build_names(project)
-    stale = stale_outputs(out, project.name, project.spec_sha256)
+    info = project.output_info("check")
     flat = [n for ns in names.values() for n in ns]
-    current, modified = output_state(out, flat, freshness_info(project))
+    current, modified = output_state(out, flat, info, freshness_info(project))
     built = rebuild or not current
     notes = []
     if built:
         say("building (outputs missing or from another spec or version)")
         notes += build(project, progress=progress).notes
         modified = []
+    states = file_states(out, project.name, info)  # after the build: what is still stale, and why
+    if write_record:  # the check's own record is written again now
+        own = {output_name(project.name, "check", suffix=s) for s in (".md", ".json")}
+        states = [f for f in states if f["name"] not in own]
+    stale = [f["name"] for f in states if not f["current"]]
     t1 = time.perf_counter()
 
     from ..cad.measure import measure_step
@@ -142,6 +149,7 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
                       {"build_or_reuse": t1 - t0, "kernel_import": t2 - t1, "measure": t3 - t2,
                        "section_properties": section_seconds}, project.stl_tol)
     res.modified, res.stale, res.notes = modified, stale, notes
+    res.files = states
     if project.spec.flight is not None:
         from ..hydro import balance_of
 
@@ -154,11 +162,15 @@ def _check(project: Project, rebuild: bool, write_record: bool, progress) -> Che
     if write_record:
         from .text import format_markdown
 
+        spec = project.spec
+        made = made_from.set_geometry(spec) + made_from.table_of_all(spec, "expect", "check_at") + \
+            made_from.flight(spec)
         record = [Output(output_name(project.name, "check", suffix=".md"), "text", format_markdown(res),
-                         "check record: every figure intended / measured in STEP and STL, verdicts"),
+                         "check record: every figure intended / measured in STEP and STL, verdicts", made),
                   Output(output_name(project.name, "check", suffix=".json"), "json", res.as_dict(),
-                         "the check record as JSON")]
+                         "the check record as JSON", made)]
         done = project.write("check", record)
         res.record_files = done.files
         res.notes += done.notes()
     return res
+

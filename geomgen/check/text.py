@@ -49,10 +49,26 @@ def summary_lines(res) -> list[str]:
         n_exp = sum(1 for r in res.records if r.verdict == "pass")
         lines.append(f"OK: every measured figure agrees with the intended one within the build tolerance; "
                      f"{n_exp} expectation{'s' if n_exp != 1 else ''} met.")
+    why = {f["name"]: f for f in res.files}
     for name in res.stale:
-        lines.append(f"STALE: {name} was made from another version of the spec (or of geomgen) and does not "
-                     "match the files checked here; run the command that made it again.")
+        f = why.get(name, {})
+        lines.append(f"STALE: {name}: {f.get('changed_words') or 'the spec'} changed since it was made; it does "
+                     f"not match the spec: run `geomgen {f.get('command', '?')}` again.")
     return lines
+
+
+def file_lines(res) -> list[str]:
+    """Every file of the set in the folder: current, or which of its inputs changed."""
+    if not res.files:
+        return []
+    out = [f"Files of '{res.spec_name}' in {res.out_dir} ({sum(f['current'] for f in res.files)} of "
+           f"{len(res.files)} current: none of the inputs they were made from changed):"]
+    for f in res.files:
+        state = "current" if f["current"] else f"STALE ({f['changed_words']} changed)"
+        if f.get("edited"):
+            state += ", edited since geomgen wrote it"
+        out.append(f"  {f['name']}  [{f['command']}]  {state}")
+    return out
 
 
 def balance_lines(res) -> list[str]:
@@ -112,6 +128,8 @@ def format_terminal(res) -> str:
         out.append(fmt(row))
     out += ["", "Δ = measured (STEP, else STL) − intended; build tol = STEP tolerance.", ""]
     out += summary_lines(res)
+    if res.files:
+        out += [""] + file_lines(res)
     if res.balance:
         out += [""] + balance_lines(res)
     if res.balance_skipped:

@@ -78,12 +78,14 @@ def balance(spec, out_dir, cg_x, sideslip, as_json):
     click.echo(json.dumps(res.as_dict(), indent=2) if as_json else text)
     if out_dir is not None:
         from ..outputs import Output, output_name
+        from ..outputs import inputs as made_from
 
+        made = made_from.set_geometry(project.spec, made_from.LOFT_ONLY) + made_from.flight(project.spec)
         done = project.write("balance", [
             Output(output_name(project.name, "balance", suffix=".txt"), "text", text,
-                   "what the balance command printed: neutral point, lift split, trim"),
+                   "what the balance command printed: neutral point, lift split, trim", made),
             Output(output_name(project.name, "balance", suffix=".json"), "json", res.as_dict(),
-                   "the balance as JSON")])
+                   "the balance as JSON", made)], options={"cg_x_mm": cg_x, "sideslip": bool(sideslip)})
         for n in done.notes():
             click.echo(f"note: {n}", err=True)
 

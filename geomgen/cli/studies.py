@@ -47,11 +47,17 @@ class _Bar:
             click.echo(f"{done}/{total} variants", err=True)
 
 
-def _study_done(project, table, out_dir, as_json, pairs=(), specs=None):
+def _study_done(project, table, out_dir, as_json, pairs=(), specs=None, others=()):
+
+    from ..outputs import inputs as made_from
     from ..studies import study_outputs, to_json, to_text
 
     click.echo(json.dumps(to_json(table), indent=1) if as_json else to_text(table))
-    done = project.write(table.kind, study_outputs(project, table, pairs, specs))
+    outs = study_outputs(project, table, pairs, specs)
+    if others:  # made from the whole spec and the other spec files too
+        for o in outs:
+            o.inputs = made_from.whole(project.spec) + made_from.files(others)
+    done = project.write(table.kind, outs)
     click.echo(f"written: {', '.join(str(p) for p in done.files)}", err=True)
 
 
@@ -78,7 +84,7 @@ def compare(spec, changes, others, jobs, scheduler, cruise_kmh, as_json, out_dir
     if not sets and not others:
         raise click.UsageError("compare: give at least one --change or --with")
     table = do_compare(project, sets, others, executor=Executor(jobs, scheduler, _Bar()), cruise_kmh=cruise_kmh)
-    _study_done(project, table, out_dir, as_json)
+    _study_done(project, table, out_dir, as_json, others=others)
 
 
 @main.command()

@@ -71,6 +71,7 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
     (exit 3) when a file cannot be written. Nothing is written unless everything is.
     """
     from ..outputs import Output, output_name
+    from ..outputs import inputs as made_from
     from ..project import Project
 
     project = Project.of(project, out_dir, allow_outside_files=allow_outside_files)
@@ -88,8 +89,11 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
         plans.append((m, shop, cuts, tables, hotwire.panels_of(m)))
 
     set_name = project.name
-    summaries, outputs = [], []
+    summaries: list = []
+    outputs: list = []
+    spec = project.spec
     for m, shop, cuts, tables, panels in plans:
+        first = len(outputs)
         side = upper_side(m)
         common = dict(spec_name=set_name, model_name=m.name, side=side)
         layout = dict(spacing=shop.template_spacing_mm, height=shop.label_height_mm)
@@ -125,6 +129,10 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
                 lambda p, pn=pn, side=side, shop=shop: gcode.write_panel_gcode(pn, p, shop=shop, spec_name=set_name,
                                                                                side=side),
                 f"{m.name}: four-axis hot-wire G-code of one foam panel (towers X/Y and U/V)"))
+        # a surface's drawings: its geometry (drawn in its own frame, not lofted) and its [surface.shop]
+        for o in outputs[first:]:
+            o.inputs = made_from.geometry(spec, m.name, made_from.PLACEMENT + made_from.LOFT_ONLY) + \
+                made_from.tables(spec, m.name, "shop")
         summaries.append(SurfaceSummary(m.name, len(cuts), sum(len(t.x_pct) for t in tables), len(panels),
                                         shop.kerf_mm, max((p.mid_deviation for p in panels), default=0.0),
                                         [f"{m.name} panel y = {p.y_a:g} .. {p.y_b:g} mm: the straight hot-wire cut "
@@ -137,7 +145,9 @@ def write_shop_drawings(project, out_dir=None, *, progress: Callable[[str], None
     res.seconds = time.perf_counter() - t0
     outputs.append(Output(output_name(set_name, "drawings", suffix=".txt"), "text",
                           lambda: format_shop_summary(res, for_file=True),
-                          "what the drawings command wrote, per surface"))
+                          "what the drawings command wrote, per surface",
+                          made_from.set_geometry(spec, made_from.PLACEMENT + made_from.LOFT_ONLY) +
+                          made_from.table_of_all(spec, "shop")))
     done = project.write("drawings", outputs, say)
     res[:] = done.files  # the summary file too
     res.notes = done.notes()

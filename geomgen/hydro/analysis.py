@@ -358,8 +358,7 @@ def _stance(models, pitch_models, fl, flow, ctx, w, water_z, ns, nc, weight_x=No
     """Mast move under the rider and the stabilizer shim (see :mod:`geomgen.hydro.rider`)."""
     i_stab = next((i for i, m in enumerate(pitch_models) if m.role == "stabilizer"), None)
     stab = pitch_models[i_stab] if i_stab is not None else None
-    speeds = sorted(fl.speeds_kmh)
-    cruise = fl.cruise_kmh if fl.cruise_kmh is not None else speeds[len(speeds) // 2]
+    cruise = fl.cruise()
 
     def trim_at(v):
         return trim_point(flow, ctx, v, fl.mass_kg, w, v_takeoff=v_to, cl_max=cl_max)

@@ -72,7 +72,7 @@ def stance(flight, trim_at, mast_x, stab, lift_of, weight_x_mm=None) -> Stance |
     if not (want_rider or want_shim):
         return None
     speeds = sorted(flight.speeds_kmh)
-    cruise = flight.cruise_kmh if flight.cruise_kmh is not None else speeds[len(speeds) // 2]
+    cruise = flight.cruise()
     notes = []
     st = Stance(cruise_kmh=cruise)
     at_cruise = trim_at(cruise)

@@ -1,11 +1,11 @@
 """Output sets: one naming rule, one writer table, whole-or-nothing commits, a manifest that
-knows which command and which spec made each file, and an index a shop can read."""
+knows which command made each file and from which inputs, and an index a shop can read."""
 
 from .formats import WRITERS, Output, register_format
-from .manifest import read_manifest, sha256_of, spec_digest
+from .manifest import file_states, output_state, read_manifest, sha256_of, spec_digest
 from .naming import FOLDERS, INDEX, MANIFEST, folder_of, output_name
-from .staging import Committed, Staging, format_index, output_state, stale_outputs, write_set
+from .staging import Committed, Staging, format_index, write_set
 
 __all__ = ["WRITERS", "Output", "register_format", "read_manifest", "sha256_of", "spec_digest", "FOLDERS",
            "INDEX", "MANIFEST", "folder_of", "output_name", "Committed", "Staging", "format_index",
-           "output_state", "stale_outputs", "write_set"]
+           "output_state", "file_states", "write_set"]

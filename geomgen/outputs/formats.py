@@ -33,12 +33,15 @@ def register_format(fmt: str, writer: Writer) -> None:
 
 @dataclass
 class Output:
-    """One file to write. ``purpose`` is a few words for the index (what a shop uses it for)."""
+    """One file to write. ``purpose`` is a few words for the index (what a shop uses it for);
+    ``inputs`` the keys of the spec's parts the file is made from (:mod:`.inputs`; None: all
+    of the spec, so the file goes stale at any edit)."""
 
     name: str
     fmt: str
     payload: Any
     purpose: str = ""
+    inputs: list[str] | None = None
 
     def write(self, path: Path) -> None:
         try:

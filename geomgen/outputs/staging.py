@@ -8,10 +8,11 @@ Ctrl-C before the switch puts every previous output back; a kill at any instant 
 either the previous set or the new one, whole, once the next run has recovered.
 
 The manifest (``geomgen-manifest.json``) records, for every file geomgen wrote: name, size,
-SHA-256, geomgen version, spec file, spec hash, output set and the command that made it.
-When a command commits, files of the same set made from another spec (or another geomgen
-version) are *stale*: they no longer describe the spec, so they are removed (they are
-geomgen's own and byte-identical to what it wrote) and the caller is told. A stale file
+SHA-256, geomgen version, spec file, spec hash, output set, the command that made it and
+the fingerprints of the inputs it was made from (:mod:`.inputs`). When a command commits,
+files of the same set one of whose own inputs changed (or made by another geomgen version)
+are *stale*: they no longer describe the spec, so they are removed (they are geomgen's own
+and byte-identical to what it wrote) and the caller is told which input changed. A stale file
 edited since geomgen wrote it is not geomgen's any more: it is left, and reported.
 Refused, with nothing written: a file the manifest does not list, a manifest or index
 geomgen did not write, a link or a linked folder where an output goes, and an output edited
@@ -32,7 +33,7 @@ from ..errors import ExportError
 from . import journal
 from .formats import Output
 from .lock import FolderLock
-from .manifest import entry_is_current, file_matches, read_manifest, sha256_of
+from .manifest import _set_of, changed_inputs, entry_info, file_matches, read_manifest, sha256_of, stale_notes
 from .naming import FOLDERS, INDEX, MANIFEST, folder_of
 
 
@@ -45,16 +46,10 @@ class Committed:
     removed_stale: list[str] = field(default_factory=list)
     kept_stale: list[str] = field(default_factory=list)  # stale but edited since written: left alone
     recovered: list[str] = field(default_factory=list)
+    why: dict[str, list[str]] = field(default_factory=dict)  # stale file -> the inputs that changed
 
     def notes(self) -> list[str]:
-        out = list(self.recovered)
-        if self.removed_stale:
-            out.append(f"removed {len(self.removed_stale)} file(s) made from an earlier version of the spec "
-                       f"(run their command again to remake them): " + ", ".join(self.removed_stale))
-        if self.kept_stale:
-            out.append(f"left {len(self.kept_stale)} stale file(s) that were edited after geomgen wrote them "
-                       "(they do not match the spec; move them away): " + ", ".join(self.kept_stale))
-        return out
+        return list(self.recovered) + stale_notes(self.removed_stale, self.kept_stale, self.why)
 
 
 def _own_manifest(out_dir: Path) -> dict:
@@ -162,29 +157,36 @@ class Staging:
         """Move every staged file into place and update the manifest and the index.
 
         ``info`` is recorded with each file written now; it must hold ``set`` (the spec's
-        name), ``spec_sha256`` and ``command``. Files of the same set from another spec hash
-        or geomgen version are removed (or, if edited since, left and reported).
+        name), ``spec_sha256`` and ``command``, and may hold ``input_digests`` (every input's
+        fingerprint now) and ``inputs_of`` (file name -> the inputs it is made from, see
+        :func:`.manifest.entry_info`). Files of the same set one of whose inputs changed (or
+        from another geomgen version) are removed (or, if edited since, left and reported).
         """
         previous = _own_manifest(self.out_dir)
         self._check_foreign(previous)
         entries = {name: e for name, e in previous.items() if (self.out_dir / name).is_file()}
-        stale_remove, stale_keep = [], []
+        stale_remove, stale_keep, why = [], [], {}
         for name, e in list(entries.items()):
             if name in self.names or e.get("set", _set_of(e)) != info["set"]:
                 continue
-            if e.get("spec_sha256") != info["spec_sha256"] or e.get("geomgen_version") != __version__:
+            changed = changed_inputs(e, info)
+            if not changed and e.get("stale"):  # its inputs are back as they were: current again
+                entries[name] = {k: v for k, v in e.items() if k not in ("stale", "stale_inputs")}
+            if changed:
+                why[name] = changed
                 if file_matches(self.out_dir / name, e):
                     stale_remove.append(e)
                     del entries[name]
                 else:
                     stale_keep.append(name)
-                    entries[name] = {**e, "stale": True}
+                    entries[name] = {**e, "stale": True, "stale_inputs": changed}
         assert self.dir is not None, "outputs are staged inside the with block"
         new = self.dir / "new"
         for name in self.names:
             p = new / name
             entries[name] = {"name": name, "size": p.stat().st_size, "sha256": sha256_of(p),
-                             "geomgen_version": __version__, "purpose": self.purposes.get(name, ""), **info}
+                             "geomgen_version": __version__, "purpose": self.purposes.get(name, ""),
+                             **entry_info(info, name)}
         manifest: dict = {"written_by": "geomgen", "files": [entries[n] for n in sorted(entries)]}
         try:
             (new / MANIFEST).write_text(json.dumps(manifest, indent=1) + "\n")
@@ -195,7 +197,7 @@ class Staging:
         _remove_empty_folders(self.out_dir)
         if interrupted:  # Ctrl-C came after the switch: the new set is whole; stop now
             raise KeyboardInterrupt
-        return Committed([self.out_dir / n for n in self.names], removed, stale_keep, self.recovered)
+        return Committed([self.out_dir / n for n in self.names], removed, stale_keep, self.recovered, why)
 
     def _swap_in(self, names: list[str], stale: list[dict]) -> tuple[list[str], bool]:
         """Journal, place, switch (see :mod:`.journal`); on any failure or Ctrl-C before the
@@ -254,35 +256,6 @@ def write_set(out_dir, outputs: list[Output], info: dict, say=None, overwrite_ed
         return stage.commit(info)
 
 
-def stale_outputs(out_dir, set_name: str, spec_sha256: str) -> list[str]:
-    """Files of set ``set_name`` in ``out_dir`` made from another spec or geomgen version."""
-    return sorted(n for n, e in read_manifest(out_dir).items()
-                  if e.get("set", _set_of(e)) == set_name and (Path(out_dir) / n).is_file()
-                  and (e.get("spec_sha256") != spec_sha256 or e.get("geomgen_version") != __version__))
-
-
-def output_state(out_dir, names, info: dict) -> tuple[bool, list[str]]:
-    """(current, modified): ``current`` if every file in ``names`` exists and was written by
-    this version of geomgen from the same spec and options (``info``); ``modified`` lists
-    those whose bytes no longer match what geomgen wrote (edited or corrupted since)."""
-    entries = read_manifest(out_dir)
-    current, modified = True, []
-    for name in names:
-        e, p = entries.get(name), Path(out_dir) / name
-        if e is None or not p.is_file() or not entry_is_current(e, info):
-            current = False
-            continue
-        if not file_matches(p, e):
-            modified.append(name)
-    return current, modified
-
-
-def _set_of(entry: dict) -> str | None:
-    """The set of an entry from a manifest without ``set`` (geomgen 0.1): its spec file's stem."""
-    spec = entry.get("spec")
-    return Path(spec).stem if spec else None
-
-
 def _remove_empty_folders(out_dir: Path) -> None:
     for folder in FOLDERS:
         d = out_dir / folder
@@ -296,7 +269,10 @@ def _remove_empty_folders(out_dir: Path) -> None:
 def format_index(entries: list[dict]) -> str:
     """The index page: every file of the folder by kind, what it is for, which command made it."""
     lines = ["# Files in this folder", "",
-             "Written by geomgen; every file is listed in `geomgen-manifest.json` with its SHA-256.", ""]
+             "Written by geomgen; every file is listed in `geomgen-manifest.json` with its SHA-256 and the "
+             "fingerprints of the inputs it was made from. 'state' is as of the last geomgen command in this "
+             "folder: a file is current unless one of its own inputs changed; `geomgen check` tells it for "
+             "the spec as it is now.", ""]
     by_folder: dict[str, list[dict]] = {}
     for e in entries:
         by_folder.setdefault(folder_of(e["name"]), []).append(e)
@@ -305,11 +281,15 @@ def format_index(entries: list[dict]) -> str:
         if not rows:
             continue
         lines += [f"## {folder or '(top)'}/: {FOLDERS.get(folder, '')}".rstrip(": "), "",
-                  "| file | what it is for | made by | from spec |", "|---|---|---|---|"]
+                  "| file | what it is for | made by | from spec | state |", "|---|---|---|---|---|"]
         for e in rows:
-            stale = " (STALE: edited, does not match the spec)" if e.get("stale") else ""
-            lines.append(f"| `{e['name']}` | {e.get('purpose', '') or '-'}{stale} | "
-                         f"`geomgen {e.get('command', '?')}` | {e.get('spec', '?')} "
-                         f"({str(e.get('spec_sha256', ''))[:12]}) |")
+            state = "current"
+            if e.get("stale"):
+                from .inputs import describe
+
+                state = (f"STALE: {describe(e.get('stale_inputs') or ['spec'])} changed since it was made "
+                         "(edited by hand, so left)")
+            lines.append(f"| `{e['name']}` | {e.get('purpose', '') or '-'} | `geomgen {e.get('command', '?')}` | "
+                         f"{e.get('spec', '?')} ({str(e.get('spec_sha256', ''))[:12]}) | {state} |")
         lines.append("")
     return "\n".join(lines)

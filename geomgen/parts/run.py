@@ -29,29 +29,12 @@ class ShopParts(list):
         self.notes: list[str] = []
 
 
-def write_shop_parts(project, out_dir=None, *, progress: Callable[[str], None] | None = None,
-                     allow_outside_files: bool = False) -> ShopParts:
-    """Build the shop parts of every surface with a ``[surface.mount]``, ``[surface.printing]`` or
-    ``[surface.laminate]`` table and write them into the project's output set, all or nothing.
-
-    ``project``: a :class:`~geomgen.project.Project` or a spec path. Raises SpecError (exit 2),
-    GeometryError or ExportError (exit 3); nothing is written then.
-    """
-    from ..cad.shape import shape_of
-    from ..hydro import shim_trim_change
-    from ..outputs import Output, output_name
-    from ..project import Project
-    from .laminate import laminate_outputs
-    from .mount_solids import mount_outputs
-    from .output import namer
-    from .pieces import print_outputs
-
-    project = Project.of(project, out_dir, allow_outside_files=allow_outside_files)
-    t0 = time.perf_counter()
-    say = progress or (lambda msg: None)
+def _surfaces_to_make(project) -> list:
+    """The surfaces with a shop table, after every spec problem of the command in one run
+    (the models': coordinate files, stations; and the tables') was refused (SpecError)."""
     spec, src = project.spec, project.source
     problems = []
-    try:  # every spec problem in one run: the models' (coordinate files, stations) and the tables'
+    try:
         project.models
     except SpecError as exc:
         problems += exc.problems
@@ -65,6 +48,32 @@ def write_shop_parts(project, out_dir=None, *, progress: Callable[[str], None] |
                         "nothing to make (specs/demo-stabilizer-shop.toml in the geomgen sources shows each table)")
     if problems:
         raise SpecError(problems)
+    return todo
+
+
+def write_shop_parts(project, out_dir=None, *, progress: Callable[[str], None] | None = None,
+                     allow_outside_files: bool = False) -> ShopParts:
+    """Build the shop parts of every surface with a ``[surface.mount]``, ``[surface.printing]`` or
+    ``[surface.laminate]`` table and write them into the project's output set, all or nothing.
+
+    ``project``: a :class:`~geomgen.project.Project` or a spec path. Raises SpecError (exit 2),
+    GeometryError or ExportError (exit 3); nothing is written then.
+    """
+    from ..cad.shape import shape_of
+    from ..hydro import shim_trim_change
+    from ..outputs import Output, output_name
+    from ..outputs import inputs as made_from
+    from ..project import Project
+    from .laminate import laminate_outputs
+    from .mount_solids import mount_outputs
+    from .output import namer
+    from .pieces import print_outputs
+
+    project = Project.of(project, out_dir, allow_outside_files=allow_outside_files)
+    t0 = time.perf_counter()
+    say = progress or (lambda msg: None)
+    spec = project.spec
+    todo = _surfaces_to_make(project)
     outputs, surfaces, notes = [], [], []
     for sf in todo:
         model = project.model(sf.name)
@@ -88,15 +97,25 @@ def write_shop_parts(project, out_dir=None, *, progress: Callable[[str], None] |
         if sf.laminate:
             outs, rep["laminate"] = laminate_outputs(model, solid, name_of, say)
             outputs += outs
+        # a surface's parts: its geometry and shop tables; shims also tell the trim change (the set, [flight])
+        made = made_from.geometry(spec, sf.name) + made_from.tables(spec, sf.name, "mount", "printing", "laminate")
+        if sf.mount and sf.mount.shim:
+            made = list(dict.fromkeys(made + made_from.set_geometry(spec) + made_from.flight(spec)))
+        for o in outputs:
+            if o.inputs is None:
+                o.inputs = made
         surfaces.append(rep)
     report = {"written_by": f"geomgen {__version__}", "spec": spec.name, "frame": "datum: x aft, y starboard, z up; mm",
               "surfaces": surfaces, "notes": notes}
     res = ShopParts([project.out_dir / o.name for o in outputs], report, project.out_dir, 0.0)
     res.seconds = time.perf_counter() - t0
+    made = list(dict.fromkeys(made_from.set_geometry(spec) + made_from.flight(spec) +
+                              made_from.table_of_all(spec, "mount", "printing", "laminate")))
     outputs += [Output(output_name(project.name, "parts", suffix=".json"), "json", report,
-                       "every shop part: sizes, volumes, poses (datum to file matrices), checks"),
+                       "every shop part: sizes, volumes, poses (datum to file matrices), checks", made),
                 Output(output_name(project.name, "parts", suffix=".txt"), "text",
-                       lambda: format_parts_summary(res, for_file=True), "what the parts command wrote, per surface")]
+                       lambda: format_parts_summary(res, for_file=True), "what the parts command wrote, per surface",
+                       made)]
     done = project.write("parts", outputs, say)
     res[:] = done.files  # the report and the summary too
     res.notes = done.notes()

@@ -351,9 +351,11 @@ def _comparison(data) -> list:
             + [[V(("comparison", "rows", j, k), "sig")] for j in range(len(c["rows"]))] for k in c["figures"]]
     return [Heading(2, ["What if: compared variants"], "comparison"),
             Table(header, rows, numeric=set(range(1, len(header))), caption=[
-                "From ", V(("comparison", "file"), "str"), " (geomgen compare, this spec). At trim: lift = weight "
-                "at the compared speed; mast move: how far the mast goes in its tracks (aft +) to keep the net "
-                "centre of pressure under the rider where the base set has it. First estimates."])]
+                "From ", V(("comparison", "file"), "str"), " (geomgen compare, this spec). At trim at ",
+                V(("comparison", "condition"), "str"), ": lift = weight; mast move: how far the mast goes in its "
+                "tracks (aft +) to keep the net centre of pressure under the rider where the base set has it. "
+                "First estimates."])] + [Para(["Note: ", V(("comparison", "notes", i), "str")])
+                                         for i in range(len(c.get("notes", [])))]
 
 
 def page(data) -> list:

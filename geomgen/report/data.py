@@ -328,20 +328,25 @@ COMPARISON_FIGURES = ("wing_lift_n", "stab_lift_n", "stab_lift_pct_weight", "dra
 
 
 def _comparison(project) -> dict | None:
-    """The set's latest what-if comparison (``geomgen compare`` into the same folder), if it was
-    made from this very spec (same hash in the manifest); else None."""
+    """The set's latest what-if comparison (``geomgen compare`` into the same folder), if it is
+    current (none of the inputs it was made from changed since, see the manifest); else None."""
+
     from ..outputs import output_name, read_manifest
-    from ..studies.figures import FIGURES
+    from ..outputs.manifest import changed_inputs
+    from ..studies.figures import FIGURES, condition_words
 
     name = output_name(project.name, "compare", suffix=".json", folder="studies")
     entry = read_manifest(project.out_dir).get(name)
-    if entry is None or entry.get("spec_sha256") != project.spec_sha256:
+    if entry is None or changed_inputs(entry, project.output_info("report")):
         return None
     try:
         table = json.loads((project.out_dir / name).read_text())
     except (OSError, ValueError):
         return None
     keys = [k for k in COMPARISON_FIGURES if any(r.get(k) is not None for r in table.get("rows", []))]
+    cond = table.get("condition")
     return {"file": name, "labels": table.get("labels", []), "figures": keys,
+            "condition": condition_words(cond) if isinstance(cond, dict) else "the compared speed",
+            "notes": [n for n in table.get("notes", []) if isinstance(n, str)],
             "headings": {k: f"{FIGURES[k][0]}{', ' + FIGURES[k][1] if FIGURES[k][1] else ''}" for k in keys},
             "rows": [{k: r.get(k) for k in keys} for r in table.get("rows", [])]}

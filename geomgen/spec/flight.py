@@ -102,3 +102,11 @@ class FlightSpec(BaseModel):
         if not (math.isfinite(v) and lo <= v <= hi):
             raise ValueError(f"a density must be within {lo:g} .. {hi:g} kg/m³ (water), got {v!r}")
         return float(v)
+
+    def cruise(self) -> float:
+        """The cruise speed every command trims at: ``cruise_kmh``, else the middle of the
+        sorted ``speeds_kmh`` (the speeds are listed from takeoff to top speed)."""
+        if self.cruise_kmh is not None:
+            return float(self.cruise_kmh)
+        speeds = sorted(self.speeds_kmh)
+        return float(speeds[len(speeds) // 2])

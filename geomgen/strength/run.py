@@ -110,8 +110,10 @@ def _margin(d: dict) -> str:
 def write_loads(project, res: dict, text: str):
     """Write the summary (text) and the JSON into the set's ``report/``."""
     from ..outputs import Output, output_name
+    from ..outputs import inputs as made_from
 
+    made = made_from.set_geometry(project.spec) + made_from.flight(project.spec)
     return project.write("loads", [
         Output(output_name(project.name, "loads", suffix=".txt"), "text", text,
-               "first estimates of loads, stresses and stiffness (what the loads command printed)"),
-        Output(output_name(project.name, "loads", suffix=".json"), "json", res, "the loads estimate as JSON")])
+               "first estimates of loads, stresses and stiffness (what the loads command printed)", made),
+        Output(output_name(project.name, "loads", suffix=".json"), "json", res, "the loads estimate as JSON", made)])

@@ -1,9 +1,10 @@
 """Changes a designer asks "what if" about, applied to the spec's data (the parsed TOML).
 
 Paths name one spec value: ``surface[stabilizer].incidence``,
-``surface[front-wing].station[2].chord``, ``flight.mass_kg`` (a surface by its name, a
-station by its index from 0). Changes are plain data (``Change``), applied to a deep copy of
-the spec dict; the changed spec is written back as TOML text, which is what a worker gets.
+``surface[front-wing].station[2].chord``, ``surface[stabilizer].position[0]`` (a longer
+fuselage), ``flight.mass_kg`` (a surface by its name, a station or a number of a list by its
+index from 0). Changes are plain data (``Change``), applied to a deep copy of the spec dict;
+the changed spec is written back as TOML text, which is what a worker gets.
 
 Kinds of change (text form for the command line in brackets):
 
@@ -125,9 +126,11 @@ def _resolve(data: dict, path: str):
             seq = node.get(key) if isinstance(node, dict) else None
             if not isinstance(seq, list) or not sel.isdigit() or int(sel) >= len(seq):
                 raise SpecError([f"path '{path}': no {key}[{sel}] (there are {len(seq or [])})"])
-            node = seq[int(sel)]
             if last:
-                raise SpecError([f"path '{path}': names a whole {key}, not a number in it"])
+                if isinstance(seq[int(sel)], dict):
+                    raise SpecError([f"path '{path}': names a whole {key}, not a number in it"])
+                return seq, int(sel)  # a number in a list: position[0]
+            node = seq[int(sel)]
         if node is None:
             raise SpecError([f"path '{path}': no '{key}' there"])
     raise SpecError([f"path '{path}': empty"])  # pragma: no cover
@@ -165,18 +168,31 @@ def apply(data: dict, changes) -> dict:
     return out
 
 
+#: (table, key) of a surface holding span positions, mm from the root (they scale with the span)
+SPAN_POSITIONS = (("shop", "templates_at"), ("shop", "hotwire_cuts"), ("printing", "split_at"))
+
+
 def _scale_area(s: dict, factor: float, keep: str) -> None:
     """Scale a surface's projected area by ``factor``: lengths along the span by a, chords by b,
     with a·b = factor (aspect: a = b = √factor; span: a = 1; chord: b = 1). Sweep and dihedral
-    offsets scale with the span so the panel angles stay; tip lengths with the chord."""
+    offsets scale with the span so the panel angles stay; tip lengths with the chord; span
+    positions of the shop tables (:data:`SPAN_POSITIONS`) with the span. Chords are rounded
+    to 0.001 mm (a spec a shop reads), far inside the check's tolerances."""
     if factor <= 0:
         raise SpecError([f"area factor must be > 0, got {factor:g}"])
     a, b = {"aspect": (math.sqrt(factor),) * 2, "span": (1.0, factor), "chord": (factor, 1.0)}[keep]
     for st in s.get("station", []):
         st["y"] = st.get("y", 0.0) * a
-        st["chord"] = st["chord"] * b
+        st["chord"] = round(st["chord"] * b, 3)
         for k in ("x", "z"):
             if k in st:
                 st[k] = st[k] * a
     if "tip_length" in s:
         s["tip_length"] = s["tip_length"] * b
+    for table, key in SPAN_POSITIONS:
+        t = s.get(table)
+        if isinstance(t, dict) and isinstance(t.get(key), list):
+            t[key] = [v * a for v in t[key]]  # as the stations: a cut at a station stays at it
+    for c in s.get("check_at", []) or []:
+        if isinstance(c, dict) and "y" in c:
+            c["y"] = c["y"] * a

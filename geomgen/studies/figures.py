@@ -36,10 +36,26 @@ SURFACE_FIGURES = ("projected_area_cm2", "span_mm", "aspect_ratio", "mac_mm", "v
 
 
 def cruise_speed(flight) -> float:
-    """The cruise speed a study compares at: the middle one of ``[flight]`` speeds (common
-    practice of this project: the speeds are listed from takeoff to top speed)."""
-    speeds = sorted(flight.speeds_kmh)
-    return float(speeds[len(speeds) // 2])
+    """The cruise speed a study compares at: the one ``balance`` trims the rider and the shim
+    at (``cruise_kmh``, else the middle ``[flight]`` speed)."""
+    return flight.cruise()
+
+
+def condition(flight, cruise_kmh: float | None = None) -> dict:
+    """What a study's figures are for: speed (and where it comes from), mass and water."""
+    from ..hydro.water import water
+
+    w = water(flight.fluid, flight.temperature_c, flight.viscosity_m2s)
+    speed_from = ("--cruise" if cruise_kmh is not None else
+                  "the spec's cruise_kmh" if flight.cruise_kmh is not None else "the middle [flight] speed")
+    return {"speed_kmh": float(cruise_kmh if cruise_kmh is not None else flight.cruise()), "speed_from": speed_from,
+            "mass_kg": float(flight.mass_kg), "water": w.name, "density_kg_m3": float(w.density)}
+
+
+def condition_words(c: dict) -> str:
+    """``18 km/h (the spec's cruise_kmh), mass 85 kg, seawater (1026.0 kg/m³)``."""
+    return (f"{c['speed_kmh']:g} km/h ({c['speed_from']}), mass {c['mass_kg']:g} kg, "
+            f"{c['water']} ({c['density_kg_m3']:.1f} kg/m³)")
 
 
 def variant_figures(text: str, source: str = "<variant>", *, cruise_kmh: float | None = None,
@@ -70,7 +86,9 @@ def variant_figures(text: str, source: str = "<variant>", *, cruise_kmh: float |
     t = next((p for p in res.trim if abs(p.speed_kmh - v) < 1e-9), None)
     roles = {s.name: s.role for s in res.surfaces}
     out: dict[str, float | None] = {k: None for k in FIGURES}
+    cond = condition(spec.flight, cruise_kmh)
     out["cruise_kmh"] = float(v)
+    out.update(mass_kg=cond["mass_kg"], water=cond["water"], density_kg_m3=cond["density_kg_m3"])
     for m in models:  # each surface's planform, as the family table shows it
         f = intended_figures(m)
         for k in SURFACE_FIGURES:
@@ -99,7 +117,20 @@ def variant_figures(text: str, source: str = "<variant>", *, cruise_kmh: float |
         out["drag_n"] = point["total_n"]
         out["lift_to_drag"] = point["l_over_d"]
     out["cp_from_mast_mm"] = t.cp_from_mast_mm if t.cp_from_mast_mm is not None else t.cp_x_mm
-    return {k: (None if isinstance(x, float) and not math.isfinite(x) else x) for k, x in out.items()}
+    return {k: _plain(x) for k, x in out.items()}
+
+
+def _plain(x):
+    """A plain Python number (not numpy's), None where not finite; other values as they are."""
+    if isinstance(x, bool) or x is None or isinstance(x, str):
+        return x
+    try:
+        f = float(x)
+    except (TypeError, ValueError):
+        return x
+    if not math.isfinite(f):
+        return None
+    return int(x) if isinstance(x, int) else f
 
 
 def with_mast_moves(rows: list[dict], base: dict) -> list[dict]:

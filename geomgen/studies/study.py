@@ -18,7 +18,7 @@ import tomllib
 
 from ..errors import SpecError
 from .changes import Change, apply, get_value
-from .figures import FIGURES, with_mast_moves
+from .figures import FIGURES, condition, condition_words, with_mast_moves
 from .run import Executor, Task
 
 
@@ -32,6 +32,33 @@ class Table:
     rows: list[dict]
     labels: list[str] = field(default_factory=list)  # one per row
     notes: list[str] = field(default_factory=list)
+    condition: dict | None = None  # speed (and where it comes from), mass, water of the base
+
+    def state_condition(self, project, cruise_kmh) -> "Table":
+        """Record the base's condition and note every row made at another speed, mass or water
+        (a value the study does not vary)."""
+        fl = project.spec.flight
+        self.condition = condition(fl, cruise_kmh) if fl is not None else None
+        if self.condition is None:
+            return self
+        base, varied = self.condition, set(self.inputs)
+        for lab, r in zip(self.labels, self.rows):
+            if "error" in r:
+                continue
+            differ = []
+            if "flight.cruise_kmh" not in varied and r.get("cruise_kmh") is not None \
+                    and abs(r["cruise_kmh"] - base["speed_kmh"]) > 1e-9:
+                differ.append(f"speed {r['cruise_kmh']:g} km/h")
+            if "flight.mass_kg" not in varied and r.get("mass_kg") is not None \
+                    and abs(r["mass_kg"] - base["mass_kg"]) > 1e-9:
+                differ.append(f"mass {r['mass_kg']:g} kg")
+            if "flight.fluid" not in varied and r.get("water") is not None and \
+                    (r["water"] != base["water"] or abs(r["density_kg_m3"] - base["density_kg_m3"]) > 1e-9):
+                differ.append(f"{r['water']} ({r['density_kg_m3']:.1f} kg/m³)")
+            if differ:
+                self.notes.append(f"{lab}: {', '.join(differ)}: differ from the base ({condition_words(base)}); "
+                                  "its figures are for another condition")
+        return self
 
     @property
     def columns(self) -> list[str]:
@@ -73,7 +100,7 @@ def compare(project, change_sets: list[list[Change]], others=(), *, executor: Ex
     for r, lab in zip(rows, labels):
         r["label"] = lab
     with_mast_moves(rows, rows[0])
-    return Table("compare", f"what if: {project.spec_path.name}", [], rows, labels)
+    return Table("compare", f"what if: {project.spec_path.name}", [], rows, labels).state_condition(project, cruise_kmh)
 
 
 def family(project, surface: str, areas_cm2: list[float], keep: str = "aspect", *,
@@ -99,19 +126,32 @@ def family(project, surface: str, areas_cm2: list[float], keep: str = "aspect", 
         member = f"{project.name}-{surface}-{a:g}cm2"
         d["name"] = member
         for s in d.get("surface", []):
-            if s.get("name") == surface:
+            if s.get("name") == surface:  # the base's calculation sheet is not this size's
                 s.pop("expect", None)
-                s.pop("check_at", None)
+                at = [{k: v for k, v in c.items() if k in ("y", "profile_tol")} for c in s.pop("check_at", [])]
+                if at:
+                    s["check_at"] = at
         datas.append(d)
         labels.append(f"{surface} {a:g} cm²")
-        texts[member] = tomli_w.dumps(d)
+        texts[member] = _family_header(project, surface, a, a0, keep) + tomli_w.dumps(d)
         builds.append(Path(build_root) / member if build_root is not None else None)
     rows = _run(project, datas, executor or Executor(), cruise_kmh, builds)
     for r, lab, a in zip(rows, labels, areas_cm2):
         r["label"], r["target_area_cm2"] = lab, a
     t = Table("family", f"size family of {surface} ({project.spec_path.name}, keep {keep})", ["target_area_cm2"],
               rows, labels, [f"scaled from {a0:.1f} cm² keeping its {keep}"])
-    return t, texts
+    return t.state_condition(project, cruise_kmh), texts
+
+
+def _family_header(project, surface: str, area: float, a0: float, keep: str) -> str:
+    """The comment lines a family member starts with: what was scaled, and how."""
+    return "\n".join([
+        f"# Size-family member made by geomgen family from {project.spec_path.name}: surface \"{surface}\" scaled",
+        f"# from {a0:.1f} to {area:g} cm² keeping its {keep}; station spans, sweep and dihedral offsets and the",
+        "# span positions of its shop tables (templates_at, hotwire_cuts, split_at, check_at y) scaled with the",
+        "# span, chords with the chord (rounded to 0.001 mm). Its expect table and check_at expected values",
+        "# were the base's calculation sheet and are left out. The base's comments are not carried over.",
+        ""]) + "\n"
 
 
 def parse_values(text: str) -> list[float]:
@@ -164,4 +204,4 @@ def sweep(project, axes: dict[str, list[float]], *, grid: bool = False, executor
     if base_row is not None:
         with_mast_moves(rows, base_row)
     return Table("sweep", f"sweep of {', '.join(axes)} ({'grid' if grid else 'one at a time'})", list(axes), rows,
-                 [r["label"] for r in rows])
+                 [r["label"] for r in rows]).state_condition(project, cruise_kmh)

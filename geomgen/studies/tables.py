@@ -9,7 +9,7 @@ import math
 import re
 
 from .. import CAUTION
-from .figures import FIGURES
+from .figures import FIGURES, condition_words
 from .study import Table
 
 CAUTION_STUDY = ("Figures from the vortex-lattice analysis (first estimates: no viscous stall, "
@@ -28,11 +28,15 @@ def _fmt(v) -> str:
 
 def to_text(t: Table) -> str:
     """Figures down, variants across (compare, family), or variants down (sweep)."""
-    lines = [t.title, ""]
+    lines = [t.title]
+    if t.condition:
+        lines.append(f"at {condition_words(t.condition)}")
+    lines.append("")
     if t.kind in ("compare", "family"):
-        keys = [k for k in t.inputs + list(FIGURES) if any(r.get(k) is not None for r in t.rows)]
+        keys = [k for k in t.inputs + list(FIGURES) + list(_CONDITION) + ["check"]
+                if any(r.get(k) is not None for r in t.rows)]
         heads = [f"{FIGURES[k][0]}{', ' + FIGURES[k][1] if k in FIGURES and FIGURES[k][1] else ''}"
-                 if k in FIGURES else k for k in keys]
+                 if k in FIGURES else _CONDITION.get(k, k) for k in keys]
         extra = sorted({k for r in t.rows for k in r if ":" in k})
         keys += extra
         heads += extra
@@ -57,20 +61,38 @@ def to_text(t: Table) -> str:
     return "\n".join(lines)
 
 
+#: row keys of the condition a variant was analysed at -> heading
+_CONDITION = {"cruise_kmh": "speed, km/h", "mass_kg": "mass, kg", "water": "water"}
+
+
+def _cell(v):
+    """A CSV cell: plain numbers (``42.669498355839046``, never a numpy repr), text as it is."""
+    if v is None:
+        return ""
+    if isinstance(v, bool):
+        return str(v)
+    if isinstance(v, float):  # numpy's float64 is one too; its repr is not a number
+        return repr(float(v))
+    if isinstance(v, int):
+        return str(int(v))
+    return v
+
+
 def to_csv(t: Table) -> str:
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     cols = t.columns
     w.writerow(cols)
     for r in t.rows:
-        w.writerow(["" if r.get(c) is None else (repr(r[c]) if isinstance(r[c], float) else r[c]) for c in cols])
+        w.writerow([_cell(r.get(c)) for c in cols])
     return buf.getvalue()
 
 
 def to_json(t: Table) -> dict:
     def clean(v):
         return None if isinstance(v, float) and not math.isfinite(v) else v
-    return {"kind": t.kind, "title": t.title, "inputs": t.inputs, "labels": t.labels, "notes": t.notes,
+    return {"kind": t.kind, "title": t.title, "condition": t.condition, "inputs": t.inputs, "labels": t.labels,
+            "notes": t.notes,
             "figures": {k: {"label": h, "unit": u} for k, (h, u) in FIGURES.items()},
             "rows": [{k: clean(v) for k, v in r.items()} for r in t.rows], "caution": CAUTION_STUDY}
 
