@@ -22,8 +22,6 @@ from __future__ import annotations
 
 import json
 import os
-import shutil
-import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -102,8 +100,8 @@ class Staging:
             raise ExportError(f"{self.out_dir}: cannot write here: {exc.strerror or exc}") from None
         self._lock.__enter__()
         try:
-            self.recovered = self._lock.note() + journal.recover(self.out_dir)
-            self.dir = Path(tempfile.mkdtemp(prefix=journal.STAGING_PREFIX, dir=self.out_dir))
+            self.recovered = self._lock.note() + journal.recover(self.out_dir, self._lock)
+            self.dir = journal.new_stage(self.out_dir, self._lock)
             (self.dir / "new").mkdir()
         except OSError as exc:
             self._lock.__exit__(None, None, None)
@@ -137,12 +135,7 @@ class Staging:
     def _check_foreign(self, previous: dict) -> None:
         edited = []
         for name in self.names:
-            target = self.out_dir / name
-            for parent in list(Path(name).parents)[:-1]:
-                if (self.out_dir / parent).is_symlink() or (os.path.lexists(self.out_dir / parent)
-                                                            and not (self.out_dir / parent).is_dir()):
-                    raise ExportError(f"{self.out_dir / parent} is a link or not a folder; geomgen does not "
-                                      "write through links (nothing was written)")
+            target = journal.inside(self.out_dir, name)  # no link or file on the way
             if (target.exists() or target.is_symlink()) and name not in previous:
                 raise ExportError(f"{target} exists and was not written by geomgen; "
                                   "move it away or choose another output folder (nothing was written)")
@@ -167,7 +160,7 @@ class Staging:
 
         previous = _own_manifest(self.out_dir)
         self._check_foreign(previous)
-        entries = {name: e for name, e in previous.items() if (self.out_dir / name).is_file()}
+        entries = {name: e for name, e in previous.items() if _is_file_inside(self.out_dir, name)}
         stale_remove, stale_keep = [], []
         for name, e in list(entries.items()):
             if name in self.names or e.get("set", _set_of(e)) != info["set"]:
@@ -235,8 +228,10 @@ class Staging:
             if self.dir is not None and not self._keep:
                 with journal.held_sigint() as hit:  # clean up whole, then let Ctrl-C go on
                     (self.dir / journal.PLAN).unlink(missing_ok=True)
-                    shutil.rmtree(self.dir, ignore_errors=True)
+                    journal.drop_stage(self.out_dir, self._lock, self.dir)
                     interrupted = hit()
+            elif self.dir is not None:  # left for the next run, which finds it in the register
+                journal._active.discard(os.path.realpath(self.dir))
         finally:
             self._lock.__exit__(*exc)
         if interrupted and exc[0] is None:
@@ -257,7 +252,7 @@ def stale_outputs(out_dir, set_name: str, spec_sha256: str) -> list[str]:
     from .. import __version__
 
     return sorted(n for n, e in read_manifest(out_dir).items()
-                  if e.get("set", _set_of(e)) == set_name and (Path(out_dir) / n).is_file()
+                  if e.get("set", _set_of(e)) == set_name and _is_file_inside(Path(out_dir), n)
                   and (e.get("spec_sha256") != spec_sha256 or e.get("geomgen_version") != __version__))
 
 
@@ -269,12 +264,22 @@ def output_state(out_dir, names, info: dict) -> tuple[bool, list[str]]:
     current, modified = True, []
     for name in names:
         e, p = entries.get(name), Path(out_dir) / name
-        if e is None or not p.is_file() or not entry_is_current(e, info):
+        if e is None or not _is_file_inside(Path(out_dir), name) or not entry_is_current(e, info):
             current = False
             continue
         if not file_matches(p, e):
             modified.append(name)
     return current, modified
+
+
+def _is_file_inside(out_dir: Path, name: str) -> bool:
+    """A regular file at ``name`` reached without passing a link (a manifest's name through a
+    linked folder is treated as absent: nothing is measured, kept or removed there)."""
+    try:
+        p = journal.inside(Path(out_dir), name)
+    except ExportError:
+        return False
+    return not p.is_symlink() and p.is_file()
 
 
 def _set_of(entry: dict) -> str | None:
