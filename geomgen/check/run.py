@@ -10,7 +10,7 @@ from .. import CAUTION, __version__
 from ..errors import CheckFailed, ExportError
 from ..geometry.figures import intended_figures
 from ..geometry.slices import Frame
-from ..outputs import Output, output_name, output_state, stale_outputs
+from ..outputs import Output, holding, output_name, output_state, stale_outputs
 from ..project import Project
 from .compare import Record, compare_part, station_records
 from .sections import section_records
@@ -67,7 +67,16 @@ def check(project, out_dir=None, *, rebuild: bool = False, stl_tol: float | None
     if stl_tol is not None:
         opts["stl_tol"] = stl_tol
     project = Project.of(project, out_dir, **opts)
-    return project.memo("check.result", lambda: _check(project, rebuild, write_record, progress))
+    return project.memo("check.result", lambda: _held_check(project, rebuild, write_record, progress))
+
+
+def _held_check(project: Project, rebuild: bool, write_record: bool, progress) -> CheckResult:
+    """The check under the folder's lock, after recovering what interrupted runs left: the
+    files measured are the set the manifest names, and no other run changes them meanwhile."""
+    with holding(project.out_dir) as recovered:
+        res = _check(project, rebuild, write_record, progress)
+    res.notes[:0] = recovered
+    return res
 
 
 def _check(project: Project, rebuild: bool, write_record: bool, progress) -> CheckResult:

@@ -4,8 +4,8 @@ knows which command and which spec made each file, and an index a shop can read.
 from .formats import WRITERS, Output, register_format
 from .manifest import read_manifest, sha256_of, spec_digest
 from .naming import FOLDERS, INDEX, MANIFEST, folder_of, output_name
-from .staging import Committed, Staging, format_index, output_state, stale_outputs, write_set
+from .staging import Committed, Staging, format_index, holding, output_state, stale_outputs, write_set
 
 __all__ = ["WRITERS", "Output", "register_format", "read_manifest", "sha256_of", "spec_digest", "FOLDERS",
-           "INDEX", "MANIFEST", "folder_of", "output_name", "Committed", "Staging", "format_index",
+           "INDEX", "MANIFEST", "folder_of", "output_name", "Committed", "Staging", "format_index", "holding",
            "output_state", "stale_outputs", "write_set"]

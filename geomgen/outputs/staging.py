@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import json
 import os
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -92,22 +93,26 @@ class Staging:
         self.recovered: list[str] = []
         self._lock = FolderLock(self.out_dir, lock_wait_s)
         self._keep = False  # a rollback failed: leave the staging folder for the next run
+        self._made: list[Path] = []  # folders this run made (taken back if left empty)
 
     def __enter__(self):
+        self._made = _make_folder(self.out_dir)
         try:
-            self.out_dir.mkdir(parents=True, exist_ok=True)
-        except OSError as exc:
-            raise ExportError(f"{self.out_dir}: cannot write here: {exc.strerror or exc}") from None
-        self._lock.__enter__()
+            self._lock.__enter__()
+        except BaseException:
+            _remove_if_empty(self._made)
+            raise
         try:
             self.recovered = self._lock.note() + journal.recover(self.out_dir, self._lock)
             self.dir = journal.new_stage(self.out_dir, self._lock)
             (self.dir / "new").mkdir()
         except OSError as exc:
             self._lock.__exit__(None, None, None)
+            _remove_if_empty(self._made)
             raise ExportError(f"{self.out_dir}: cannot write here: {exc.strerror or exc}") from None
         except BaseException:
             self._lock.__exit__(None, None, None)
+            _remove_if_empty(self._made)
             raise
         return self
 
@@ -234,9 +239,55 @@ class Staging:
                 journal._active.discard(os.path.realpath(self.dir))
         finally:
             self._lock.__exit__(*exc)
+            _remove_if_empty(self._made)  # a refused run leaves no empty folder behind
         if interrupted and exc[0] is None:
             raise KeyboardInterrupt
         return False
+
+
+def _make_folder(out_dir: Path) -> list[Path]:
+    """Make ``out_dir`` and its missing parents; the folders made, innermost first."""
+    made, p = [], Path(out_dir)
+    while not os.path.lexists(p) and p != p.parent:
+        made.append(p)
+        p = p.parent
+    try:
+        Path(out_dir).mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        _remove_if_empty(made)
+        raise ExportError(f"{out_dir}: cannot write here: {exc.strerror or exc}") from None
+    return made
+
+
+def _remove_if_empty(made: list[Path]) -> None:
+    """Take back the folders a refused run made (only while they are empty)."""
+    for p in made:
+        try:
+            p.rmdir()
+        except OSError:
+            return
+
+
+@contextmanager
+def holding(out_dir, lock_wait_s: float | None = None):
+    """Hold the folder's write lock and first finish or undo what interrupted runs left;
+    yields the notes of that. For every command that reads the folder (``check``,
+    ``report``): what it measures cannot change under it, and no other run commits (and so
+    removes files as stale) until it is done. Re-entrant with :class:`Staging`. A folder
+    made here and left empty (the command was refused) is removed again."""
+    made = _make_folder(Path(out_dir))
+    lock = FolderLock(out_dir, lock_wait_s)
+    try:
+        lock.__enter__()
+    except BaseException:
+        _remove_if_empty(made)
+        raise
+    try:
+        notes = lock.note() + journal.recover(Path(out_dir), lock)
+        yield notes
+    finally:
+        lock.__exit__(None, None, None)
+        _remove_if_empty(made)
 
 
 def write_set(out_dir, outputs: list[Output], info: dict, say=None, overwrite_edited: bool = False) -> Committed:

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import itertools
 import math
+import os
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -47,8 +48,33 @@ def _base(project) -> tuple[dict, str]:
 def _task(project, data: dict, cruise_kmh, build_dir=None) -> Task:
     import tomli_w
 
+    if build_dir is not None:  # its spec is read from its own folder: coordinate files by full path
+        data = _with_full_file_paths(data, project.spec_path.parent)
     return Task(tomli_w.dumps(data), str(project.spec_path), cruise_kmh, project.allow_outside_files,
                 str(build_dir) if build_dir is not None else None)
+
+
+def _with_full_file_paths(data: dict, base_dir: Path) -> dict:
+    """``data`` with every coordinate file of ``[sections]`` given by its full path, resolved
+    by the spec's own rule (relative to the folder of the spec as it was named)."""
+    import copy
+
+    data = copy.deepcopy(data)
+    for sec in (data.get("sections") or {}).values():
+        if isinstance(sec, dict) and isinstance(sec.get("file"), str) and not Path(sec["file"]).is_absolute():
+            sec["file"] = os.path.abspath(base_dir / sec["file"])
+    return data
+
+
+def _build_folders(root, members: list[str]) -> list[Path]:
+    """One output folder per variant under ``root``, each checked before anything runs: no
+    link or file on the way (else ExportError: nothing is written)."""
+    from ..outputs.journal import inside
+
+    root = Path(root)
+    for m in members:
+        inside(root.parent, f"{root.name}/{m}/variant.toml")
+    return [root / m for m in members]
 
 
 def _run(project, datas: list[dict], executor: Executor, cruise_kmh, build_dirs=None) -> list[dict]:
@@ -90,7 +116,7 @@ def family(project, surface: str, areas_cm2: list[float], keep: str = "aspect", 
         raise SpecError([f"{project.source}: no surface named '{surface}' "
                          f"(the spec has: {', '.join(m.name for m in project.models)})"])
     a0 = intended_figures(model).projected_area_cm2
-    datas, labels, texts, builds = [], [], {}, []
+    datas, labels, texts = [], [], {}
     for a in areas_cm2:
         if not (math.isfinite(a) and a > 0):
             raise SpecError([f"family: area {a!r} cm² must be a positive number"])
@@ -104,7 +130,7 @@ def family(project, surface: str, areas_cm2: list[float], keep: str = "aspect", 
         datas.append(d)
         labels.append(f"{surface} {a:g} cm²")
         texts[member] = tomli_w.dumps(d)
-        builds.append(Path(build_root) / member if build_root is not None else None)
+    builds = _build_folders(build_root, [d["name"] for d in datas]) if build_root is not None else None
     rows = _run(project, datas, executor or Executor(), cruise_kmh, builds)
     for r, lab, a in zip(rows, labels, areas_cm2):
         r["label"], r["target_area_cm2"] = lab, a
@@ -154,7 +180,7 @@ def sweep(project, axes: dict[str, list[float]], *, grid: bool = False, executor
         if len(combos) > limit:
             raise SpecError([f"sweep of {len(combos)} variants; at most {limit}"])
     datas = [apply(data, [Change("set", p, v) for p, v in c.items()]) for c in combos]
-    builds = [Path(build_root) / f"variant-{i + 1:05d}" for i in range(len(datas))] if build_root else None
+    builds = _build_folders(build_root, [f"variant-{i + 1:05d}" for i in range(len(datas))]) if build_root else None
     rows = _run(project, datas, executor or Executor(), cruise_kmh, builds)
     for i, (r, c) in enumerate(zip(rows, combos)):
         r.update(c)
