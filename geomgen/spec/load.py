@@ -240,6 +240,19 @@ def load_spec(path, allow_outside_files: bool = False) -> Spec:
     files) unless ``allow_outside_files`` is given.
     """
     path = Path(path)
+    text = read_spec_text(path)
+    spec = load_spec_text(text, str(path))
+    spec._source = path  # type: ignore[attr-defined]
+    spec._allow_outside_files = allow_outside_files  # type: ignore[attr-defined]
+    spec._text = text  # type: ignore[attr-defined]  (the bytes validated: studies start from them)
+    return spec
+
+
+def read_spec_text(path) -> str:
+    """The text of a spec file through the input guards every spec file passes: regular
+    files only (a FIFO or ``/dev/zero`` is refused, not waited on), at most
+    ``MAX_SPEC_BYTES`` read, UTF-8 (a byte-order mark is dropped). SpecError names the file."""
+    path = Path(path)
     try:
         raw = read_capped(path, MAX_SPEC_BYTES)  # regular files only (a FIFO or /dev/zero would hang)
     except FileNotFoundError:
@@ -247,10 +260,6 @@ def load_spec(path, allow_outside_files: bool = False) -> Spec:
     except NotReadable as exc:
         raise SpecError([f"{path}: cannot read the spec: {exc}"]) from None
     try:
-        text = raw.decode("utf-8-sig")  # a byte-order mark some editors write is accepted
+        return raw.decode("utf-8-sig")  # a byte-order mark some editors write is accepted
     except UnicodeDecodeError:
         raise SpecError([f"{path}: not a text file (not UTF-8)"]) from None
-    spec = load_spec_text(text, str(path))
-    spec._source = path  # type: ignore[attr-defined]
-    spec._allow_outside_files = allow_outside_files  # type: ignore[attr-defined]
-    return spec

@@ -41,16 +41,30 @@ class Table:
 
 
 def _base(project) -> tuple[dict, str]:
-    text = project.spec_path.read_text(encoding="utf-8-sig")
+    """The base spec's data, from the very text that was validated (not read again)."""
+    from ..spec import read_spec_text
+
+    text = getattr(project.spec, "_text", None)
+    if text is None:
+        text = read_spec_text(project.spec_path)
     return tomllib.loads(text), text
 
 
-def _task(project, data: dict, cruise_kmh, build_dir=None) -> Task:
+def _other(path, allow_outside_files: bool) -> dict:
+    """Another spec to compare with: read and validated exactly as the base spec is (regular
+    file, size cap, nesting, TOML errors), every problem named against that file."""
+    from ..spec import load_spec
+
+    return tomllib.loads(load_spec(path, allow_outside_files)._text)
+
+
+def _task(project, data: dict, cruise_kmh, build_dir=None, source=None) -> Task:
     import tomli_w
 
+    source = Path(source) if source is not None else project.spec_path
     if build_dir is not None:  # its spec is read from its own folder: coordinate files by full path
-        data = _with_full_file_paths(data, project.spec_path.parent)
-    return Task(tomli_w.dumps(data), str(project.spec_path), cruise_kmh, project.allow_outside_files,
+        data = _with_full_file_paths(data, source.parent)
+    return Task(tomli_w.dumps(data), str(source), cruise_kmh, project.allow_outside_files,
                 str(build_dir) if build_dir is not None else None)
 
 
@@ -77,8 +91,12 @@ def _build_folders(root, members: list[str]) -> list[Path]:
     return [root / m for m in members]
 
 
-def _run(project, datas: list[dict], executor: Executor, cruise_kmh, build_dirs=None) -> list[dict]:
-    tasks = [_task(project, d, cruise_kmh, (build_dirs or [None] * len(datas))[i]) for i, d in enumerate(datas)]
+def _run(project, datas: list[dict], executor: Executor, cruise_kmh, build_dirs=None, sources=None) -> list[dict]:
+    """Evaluate every variant; ``sources``: the spec file each one's relative files and
+    messages refer to (default the project's)."""
+    n = len(datas)
+    tasks = [_task(project, d, cruise_kmh, (build_dirs or [None] * n)[i], (sources or [None] * n)[i])
+             for i, d in enumerate(datas)]
     return executor.map(tasks)
 
 
@@ -91,10 +109,12 @@ def compare(project, change_sets: list[list[Change]], others=(), *, executor: Ex
     for cs in change_sets:
         datas.append(apply(data, cs))
         labels.append(" + ".join(c.label for c in cs))
+    sources = [None] * len(datas)
     for other in others:
-        datas.append(tomllib.loads(Path(other).read_text(encoding="utf-8-sig")))
+        datas.append(_other(other, project.allow_outside_files))
         labels.append(Path(other).name)
-    rows = _run(project, datas, executor or Executor(), cruise_kmh)
+        sources.append(other)  # its own folder for its coordinate files, its own name in messages
+    rows = _run(project, datas, executor or Executor(), cruise_kmh, sources=sources)
     for r, lab in zip(rows, labels):
         r["label"] = lab
     with_mast_moves(rows, rows[0])
