@@ -9,6 +9,7 @@ from __future__ import annotations
 import difflib
 import tomllib
 import typing
+import unicodedata
 from pathlib import Path
 
 from pydantic import BaseModel, ValidationError
@@ -94,13 +95,20 @@ def _cross_checks(data: dict) -> list[str]:
     sections = data.get("sections") if isinstance(data.get("sections"), dict) else {}
     names = list(sections)
     surfaces = data.get("surface") if isinstance(data.get("surface"), list) else []
+    by_form: dict[str, str] = {}
+    for nm in names:  # 'é' written as one character or as 'e' and an accent: one name to a reader
+        form = unicodedata.normalize("NFKC", nm)
+        if form in by_form:
+            problems.append(f"sections: '{printable(nm, 40)}' and '{printable(by_form[form], 40)}' differ only in "
+                            "how their characters are encoded (Unicode normalisation); give them different names")
+        by_form.setdefault(form, nm)
     seen = {}
     for i, surf in enumerate(surfaces):
         if not isinstance(surf, dict):
             continue
         nm = surf.get("name")
         if isinstance(nm, str):
-            key = nm.casefold()  # Wing and wing are one file on a case-insensitive disk
+            key = unicodedata.normalize("NFKC", nm).casefold()  # Wing and wing: one file on some disks
             if key in seen:
                 problems.append(f"{_path(('surface', i, 'name'), data)}: name '{nm}' is already used by "
                                 f"surface[{seen[key]}] (file names would clash)")
