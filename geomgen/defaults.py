@@ -50,6 +50,10 @@ TE_MAX_FRACTION_OF_RAMP_THICKNESS = 0.5
 #: source: finished parts carry about 0.5-1.5 mm flat).
 TE_THICKNESS_MM = 0.5
 
+#: Thinnest open trailing edge accepted, mm (0 = sharp is always accepted): the kernel cannot
+#: make an edge of 1e-7 mm (1e-6 mm built), and no shop can make one of a micrometre.
+MIN_TE_THICKNESS_MM = 0.001
+
 #: STL chordal deviation from the B-spline skin, mm (mid-edge distance bound).
 STL_LINEAR_TOL_MM = 0.05
 

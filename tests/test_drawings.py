@@ -265,7 +265,7 @@ def test_failing_writer_leaves_nothing(write_spec, tmp_path, monkeypatch):
         m.setattr(hotwire, "write_panel_dxf", boom)  # the last writer of the first surface
         with pytest.raises(RuntimeError):
             write_shop_drawings(spec, out)
-    assert list(out.iterdir()) == []  # no partial files, no staging folder
+    assert not out.exists()  # no partial files, no staging folder, not even the folder it would have made
 
     files = write_shop_drawings(spec, out)
     before = _snapshot(out)

@@ -76,3 +76,21 @@ def test_the_step_writer_on_a_full_disk_says_why(full_disk):
         write_step([box], mnt / "box.step", {})
     assert "box.step" in str(err.value)
     assert re.search(r"no space left on (the )?device", str(err.value), re.I), str(err.value)
+
+
+@pytest.mark.slow
+def test_new_on_a_full_disk_leaves_no_empty_spec(full_disk):
+    _, mnt = full_disk
+    before = snapshot(mnt)
+    r = CliRunner().invoke(main, ["new", str(mnt / "starter.toml")])
+    assert r.exit_code == 3 and "Traceback" not in r.output, r.output
+    assert re.search(r"no space left on (the )?device", r.output, re.I), r.output
+    assert not (mnt / "starter.toml").exists() and snapshot(mnt) == before
+
+
+@pytest.mark.slow
+def test_a_refused_build_on_a_full_disk_leaves_no_empty_folder(full_disk):
+    spec, mnt = full_disk
+    r = CliRunner().invoke(main, ["build", str(spec), "-o", str(mnt / "new" / "set")])
+    assert r.exit_code == 3 and "Traceback" not in r.output, r.output
+    assert not (mnt / "new").exists()

@@ -395,3 +395,20 @@ def test_found_by_the_property_a_short_round_tipped_part_checks_clean(tmp_path):
     (m,) = build_models(load_spec_text(spec_text(p), "fz.toml"))
     assert m.skin.area() == pytest.approx(m.skin.area(8, 32), rel=1e-6)
     assert run_cli_case(p, tmp_path) == ("clean", "", "")
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.text(max_size=300))
+def test_compare_with_arbitrary_text_is_a_clean_spec_error_naming_that_file(tmp_path_factory, text):
+    """The other spec of ``compare --with`` meets the same guards as the main spec."""
+    from conftest import DEMO
+
+    from geomgen.project import Project
+    from geomgen.studies import compare
+
+    p = tmp_path_factory.mktemp("with") / "other.toml"
+    p.write_text(text)
+    try:
+        compare(Project(DEMO), [], [p])
+    except SpecError as exc:
+        assert exc.problems and all(m.startswith(str(p)) for m in exc.problems), exc.problems

@@ -80,3 +80,54 @@ def test_error_lines_are_capped_with_a_count_of_the_rest(tmp_path):
     lines = [ln for ln in r.output.splitlines() if ln.startswith("spec error:")]
     assert r.exit_code == 2 and len(lines) == 51 and "more not shown" in lines[-1]
     assert "500 problems" in r.output or "problems" in r.output
+
+
+# -- compare --with OTHER: the other spec passes the same guards, named as itself ----------
+def compare_with(other):
+    from conftest import DEMO
+
+    return run("compare", DEMO, "--with", other)
+
+
+def test_compare_with_invalid_toml_names_the_other_file(tmp_path):
+    p = tmp_path / "other.toml"
+    p.write_text("name = = 1\n")
+    r = compare_with(p)
+    assert r.exit_code == 2 and f"{p}: not valid TOML" in r.output
+
+
+def test_compare_with_a_fifo_or_a_device_is_refused_not_read(tmp_path):
+    fifo = tmp_path / "other.toml"
+    os.mkfifo(fifo)
+    r = compare_with(fifo)
+    assert r.exit_code == 2 and "pipe" in r.output and str(fifo) in r.output
+    r = compare_with("/dev/zero")
+    assert r.exit_code == 2 and "device" in r.output
+
+
+def test_compare_with_deep_nesting_is_refused_and_blamed_on_the_other_file(tmp_path):
+    from conftest import DEMO
+
+    p = tmp_path / "other.toml"
+    p.write_text(DEMO.read_text() + "\nextra = " + "[" * 50_000 + "]" * 50_000 + "\n")
+    r = compare_with(p)
+    assert r.exit_code == 2 and "nested" in r.output and str(p) in r.output
+    p.write_text(DEMO.read_text() + "\nextra = " + "[" * 30 + "]" * 30 + "\n")
+    r = compare_with(p)
+    lines = [ln for ln in r.output.splitlines() if "nested deeper than" in ln]
+    assert r.exit_code == 2 and lines and all(str(p) in ln and str(DEMO) not in ln for ln in lines)
+
+
+def test_compare_with_a_huge_file_is_refused_by_bytes_read(tmp_path):
+    p = tmp_path / "other.toml"
+    p.write_text("# x\n" * 300_000)
+    assert compare_with(p).exit_code == 2
+
+
+def test_compare_with_a_valid_other_spec_still_compares(tmp_path):
+    from conftest import DEMO
+
+    p = tmp_path / "other.toml"
+    p.write_text(DEMO.read_text().replace("mass_kg = 85.0", "mass_kg = 90.0"))
+    r = CliRunner().invoke(main, ["compare", str(DEMO), "--with", str(p), "-o", str(tmp_path / "o")])
+    assert r.exit_code == 0 and "other.toml" in r.output, r.output

@@ -158,10 +158,17 @@ def test_a_kill_at_every_step_of_the_commit(tmp_path, sets):
 
 def test_leftover_staging_without_a_plan_is_removed_and_reported(sets):
     out, old, _ = sets
-    junk = out / ".geomgen-staging-abc123" / "new" / "drawings"
-    junk.mkdir(parents=True)
-    (junk / "s-000.csv").write_bytes(b"x" * 5000)
-    notes = recovered(out)
+    pid = os.fork()
+    if pid == 0:  # child: killed while writing its files, before any plan
+        try:
+            with Staging(out) as stage:
+                stage.path("drawings/s-000.csv").write_bytes(b"x" * 5000)
+                os._exit(9)
+        finally:
+            os._exit(1)
+    _, status = os.waitpid(pid, 0)
+    assert os.waitstatus_to_exitcode(status) == 9 and len(journal.leftovers(out)) == 1
+    notes = [n for n in recovered(out) if "write lock" not in n]
     assert len(notes) == 1 and "interrupted" in notes[0] and "MB" in notes[0]
     assert snapshot(out) == old
 

@@ -156,7 +156,7 @@ def test_family_builds_and_checks_each_size_when_asked(tmp_path):
     (row,) = t.rows
     assert row["check"] == "ok", row
     member = next(iter(specs))
-    built = tmp_path / "o" / "family" / member / "files"
+    built = tmp_path / "o" / "family" / member
     assert (built / "cad" / f"{member}-stabilizer.step").is_file()
     assert (built / "report" / f"{member}-check.json").is_file()
 

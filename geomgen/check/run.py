@@ -10,7 +10,7 @@ from .. import CAUTION, __version__
 from ..errors import CheckFailed, ExportError, GeomgenError
 from ..geometry.figures import intended_figures
 from ..geometry.slices import Frame
-from ..outputs import Output, file_states, output_name, output_state
+from ..outputs import Output, file_states, holding, output_name, output_state
 from ..outputs import inputs as made_from
 from ..project import Project
 from .compare import Record, compare_part, station_records
@@ -72,15 +72,24 @@ def check(project, out_dir=None, *, rebuild: bool = False, stl_tol: float | None
     # the result depends on whether the set was rebuilt and recorded: one memo per way of asking
     # (a rebuild always measures again; its result then serves a plain check of the project)
     if rebuild:
-        res = _check(project, rebuild, write_record, progress)
+        res = _held_check(project, rebuild, write_record, progress)
         project._memo[memo_key(write_record)] = res
         return res
-    return project.memo(memo_key(write_record), lambda: _check(project, rebuild, write_record, progress))
+    return project.memo(memo_key(write_record), lambda: _held_check(project, rebuild, write_record, progress))
 
 
 def memo_key(write_record: bool = True) -> tuple:
     """The key a project keeps its check result under (a test may place one there)."""
     return ("check.result", write_record)
+
+
+def _held_check(project: Project, rebuild: bool, write_record: bool, progress) -> CheckResult:
+    """The check under the folder's lock, after recovering what interrupted runs left: the
+    files measured are the set the manifest names, and no other run changes them meanwhile."""
+    with holding(project.out_dir) as recovered:
+        res = _check(project, rebuild, write_record, progress)
+    res.notes[:0] = recovered
+    return res
 
 
 def _check(project: Project, rebuild: bool, write_record: bool, progress) -> CheckResult:

@@ -28,11 +28,24 @@ KIND = {SpecError: "spec error", GeometryError: "geometry error", ExportError: "
         CheckFailed: "check failed"}
 
 
+def escaped(text: str) -> str:
+    """``text`` with every control or text-reordering character written as an escape
+    (``\\x1b``): a message echoing a name from a spec or a file name never drives the terminal."""
+    import unicodedata
+
+    def one(c: str) -> str:
+        if unicodedata.category(c) in ("Cc", "Cf", "Cs") and c not in "\u200d":
+            return f"\\x{ord(c):02x}" if ord(c) < 0x100 else f"\\u{ord(c):04x}"
+        return c
+    return "".join(one(c) for c in str(text))
+
+
 def _fail(exc: GeomgenError, spec: str | None = None):
     lines = exc.problems if isinstance(exc, SpecError) else [str(exc)]
+    lines = [escaped(line) for line in lines]
     if isinstance(exc, GeometryError) and spec and not lines[0].startswith(str(spec)):
         # the refusal comes from what the spec asks for: name the file, as spec errors do
-        lines = [f"{spec}: {lines[0]}"] + lines[1:]
+        lines = [f"{escaped(spec)}: {lines[0]}"] + lines[1:]
     kind = next((w for cls, w in KIND.items() if isinstance(exc, cls)), "error")
     from ..defaults import MAX_ERROR_LINES
 
@@ -78,11 +91,32 @@ class Commands(click.Group):
             _fail(exc, ctx.meta.get("geomgen.spec"))
         except OSError as exc:  # a disk or permission failure outside a writer: not a geometry error
             where = f"{exc.filename}: " if getattr(exc, "filename", None) else ""
-            click.echo(f"cannot read or write: {where}{exc.strerror or exc}", err=True)
+            click.echo(escaped(f"cannot read or write: {where}{exc.strerror or exc}"), err=True)
             sys.exit(3)
         except KeyboardInterrupt:
-            click.echo("interrupted; outputs are written whole or not at all", err=True)
-            sys.exit(130)
+            _interrupted()
+        except ImportError as exc:
+            # Ctrl-C while an extension module (the CAD kernel) initialises comes out as
+            # "ImportError: initialization failed" with the KeyboardInterrupt as its cause
+            if _caused_by_interrupt(exc):
+                _interrupted()
+            raise
+
+
+def _interrupted():
+    click.echo("interrupted; outputs are written whole or not at all", err=True)
+    sys.exit(130)
+
+
+def _caused_by_interrupt(exc: BaseException) -> bool:
+    seen = set()
+    cur: BaseException | None = exc
+    while cur is not None and id(cur) not in seen:
+        if isinstance(cur, KeyboardInterrupt):
+            return True
+        seen.add(id(cur))
+        cur = cur.__cause__ or cur.__context__
+    return False
 
 
 class _Progress:

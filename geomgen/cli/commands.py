@@ -228,6 +228,17 @@ def new(path):
         raise SpecError([f"{p} exists; geomgen does not overwrite files it did not write"]) from None
     except OSError as exc:
         raise ExportError(f"{p}: {exc.strerror or exc}") from None
-    with os.fdopen(fd, "w") as f:
-        f.write(STARTER)
+    try:
+        with os.fdopen(fd, "w") as f:
+            f.write(STARTER)
+            f.flush()
+            os.fsync(f.fileno())
+    except BaseException as exc:  # made by this command a moment ago (O_EXCL): no half spec left
+        try:
+            os.remove(p)
+        except OSError:
+            pass
+        if isinstance(exc, OSError):
+            raise ExportError(f"{p}: {exc.strerror or exc} (nothing was written)") from None
+        raise
     click.echo(f"wrote {p}; build it with: geomgen build {p}")

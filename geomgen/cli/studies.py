@@ -47,10 +47,11 @@ class _Bar:
             click.echo(f"{done}/{total} variants", err=True)
 
 
-def _study_done(project, table, out_dir, as_json, pairs=(), specs=None, others=()):
-
+def _study_done(project, table, out_dir, as_json, pairs=(), specs=None, others=(), built=False):
+    """Print and write the table; with ``--build``, exit 3 if a variant could not be built or
+    checked, 1 if a variant's check found a fault (the table is written either way)."""
     from ..outputs import inputs as made_from
-    from ..studies import study_outputs, to_json, to_text
+    from ..studies import build_failures, study_outputs, to_json, to_text
 
     click.echo(json.dumps(to_json(table), indent=1) if as_json else to_text(table))
     outs = study_outputs(project, table, pairs, specs)
@@ -59,6 +60,12 @@ def _study_done(project, table, out_dir, as_json, pairs=(), specs=None, others=(
             o.inputs = made_from.whole(project.spec) + made_from.files(others)
     done = project.write(table.kind, outs)
     click.echo(f"written: {', '.join(str(p) for p in done.files)}", err=True)
+    if built:
+        errors, faults = build_failures(table)
+        if errors or faults:
+            click.echo(f"{table.kind} --build: {errors} variant(s) could not be built or checked, {faults} "
+                       f"failed their check (see the table; exit {3 if errors else 1})", err=True)
+            sys.exit(3 if errors else 1)
 
 
 @main.command()
@@ -108,7 +115,7 @@ def family(spec, surface, areas, keep, do_build, jobs, scheduler, cruise_kmh, as
     table, specs = do_family(project, surface, _option_value(parse_values, areas, "--areas"), keep,
                              executor=Executor(jobs, scheduler, _Bar()), cruise_kmh=cruise_kmh,
                              build_root=(project.out_dir / "family") if do_build else None)
-    _study_done(project, table, out_dir, as_json, specs=specs)
+    _study_done(project, table, out_dir, as_json, specs=specs, built=do_build)
 
 
 @main.command()
@@ -152,4 +159,4 @@ def sweep(spec, axes, grid, plot_pairs, do_build, jobs, scheduler, cruise_kmh, a
         pairs = [(y, x) for x in parsed for y in ("stab_lift_pct_weight", "cp_from_mast_mm", "lift_to_drag")]
     table = do_sweep(project, parsed, grid=grid, executor=Executor(jobs, scheduler, _Bar()), cruise_kmh=cruise_kmh,
                      build_root=(project.out_dir / "variants") if do_build else None)
-    _study_done(project, table, out_dir, as_json, pairs)
+    _study_done(project, table, out_dir, as_json, pairs, built=do_build)

@@ -217,8 +217,14 @@ def save_dxf(doc, path) -> None:
 
     before = ezdxf.options.write_fixed_meta_data_for_testing
     ezdxf.options.write_fixed_meta_data_for_testing = True
+    # ezdxf adds a CLASS record per entity type in use in the order of a set, which follows
+    # PYTHONHASHSEED (two orders of the CLASSES section seen): give it the types sorted
+    db = doc.entitydb
+    in_use = db.dxf_types_in_use
+    db.dxf_types_in_use = lambda: sorted(in_use())
     try:
         doc.ezdxf_metadata()[CREATED_BY_EZDXF] = ezdxf_marker_string()  # stamped when the document was made
         doc.saveas(path)
     finally:
         ezdxf.options.write_fixed_meta_data_for_testing = before
+        del db.dxf_types_in_use

@@ -1,11 +1,23 @@
 """The commit of an output set, safe against interruption at any instant.
 
-A staging folder ``.geomgen-staging-*`` inside the output folder (same filesystem, so every
-move is an atomic rename) holds::
+A staging folder ``.geomgen-staging-<12 hex>`` inside the output folder (same filesystem, so
+every move is an atomic rename) holds::
 
+    token-<token>          an empty file named after a random token, also recorded in the
+                           lock file's register
     new/<name>…            the new files, the new manifest and the new index
     old/<name>…            hard links to (or, where links fail, the moved) previous files
     plan.json              what the commit will do, written whole (temp file + rename)
+
+**Only geomgen's own staging folders are acted on.** A run records the folder's name and a
+fresh random token in the register of the folder's lock file (:mod:`.lock`) before it makes
+the folder, and writes the token into it; recovery takes only folders that are in the
+register, are real folders (not links) and hold that token. Anything else named like a
+staging folder is the user's and is never removed or read. **Every name is resolved inside
+the real output folder:** a name is plain (no absolute path, no ``..``, ``.`` or empty part)
+and no folder on its way is a link or a file (checked with ``lstat`` part by part, and the
+resolved parent must be the output folder's own subfolder), else the name is refused and
+nothing is moved, removed or written.
 
 The commit places each new file over its target (the previous one kept in ``old/`` first),
 the index too, and then the manifest: **replacing the manifest is the one atomic switch.**
@@ -24,10 +36,13 @@ commit rolls back and the interrupt goes on (exit 130); after it the commit fini
 
 from __future__ import annotations
 
+import hmac
 import json
 import os
+import secrets
 import shutil
 import signal
+import stat
 import threading
 from contextlib import contextmanager
 from pathlib import Path
@@ -38,6 +53,10 @@ from .naming import MANIFEST
 
 STAGING_PREFIX = ".geomgen-staging-"
 PLAN = "plan.json"
+TOKEN = "token-"  # inside a staging folder: an empty file token-<the token the lock file's register holds>
+
+#: staging folders open in this process (a run nested in another never recovers its parent's)
+_active: set[str] = set()
 
 
 def _step(what: str) -> None:
@@ -95,12 +114,124 @@ def write_plan(stage: Path, names: list[str], had_old: dict[str, bool], stale: l
     _step("plan in place")
 
 
+def _parts(name) -> list[str] | None:
+    """The parts of a plain relative POSIX name, or None."""
+    if not isinstance(name, str) or not name or "\x00" in name or "\\" in name or name.startswith("/"):
+        return None
+    parts = name.split("/")
+    return parts if all(p not in ("", ".", "..") for p in parts) else None
+
+
+def inside(root: Path, name: str) -> Path:
+    """``root/name``, refusing (ExportError) a name that is not plain or whose way from ``root``
+    passes a link or a file: what is done to the result stays inside ``root``."""
+    parts = _parts(name)
+    if parts is None:
+        raise ExportError(f"{root}: {name!r} is not a plain file name inside the folder; refused (nothing was "
+                          "written)")
+    real = os.path.realpath(root)
+    cur = Path(root)
+    for k, part in enumerate(parts[:-1]):
+        cur = cur / part
+        try:
+            st = os.lstat(cur)
+        except FileNotFoundError:
+            break  # the rest does not exist yet: made by make_parents, folder by folder
+        except OSError as exc:
+            raise ExportError(f"{cur}: {exc.strerror or exc} (nothing was written)") from None
+        if stat.S_ISLNK(st.st_mode) or not stat.S_ISDIR(st.st_mode):
+            raise ExportError(f"{cur} is a link or not a folder; geomgen does not write, move or remove "
+                              "through links (nothing was written)")
+        if os.path.realpath(cur) != os.path.join(real, *parts[:k + 1]):
+            raise ExportError(f"{cur} does not lie inside {root}; refused (nothing was written)")
+    return Path(root) / name
+
+
+def make_parents(root: Path, name: str) -> Path:
+    """:func:`inside`, then make the missing folders on the way (never through a link)."""
+    inside(root, name)  # refuses a name through a link before any folder is made
+    cur = Path(root)
+    for part in name.split("/")[:-1]:
+        cur = cur / part
+        try:
+            os.mkdir(cur)
+        except FileExistsError:
+            pass
+    return inside(root, name)
+
+
+def new_stage(out_dir: Path, lock) -> Path:
+    """Make a staging folder of geomgen's own in ``out_dir``: recorded in the lock's register
+    first, then made, then given its token (a kill between leaves nothing recovery would take
+    for someone else's)."""
+    while True:
+        name, token = STAGING_PREFIX + secrets.token_hex(6), secrets.token_hex(16)
+        if not os.path.lexists(out_dir / name):
+            break
+    lock.register(name, token)
+    _step("stage registered")
+    stage = out_dir / name
+    try:
+        os.mkdir(stage, 0o700)
+    except BaseException:
+        lock.unregister(name)
+        raise
+    try:
+        _active.add(os.path.realpath(stage))
+        _step("stage made")
+        os.close(os.open(stage / (TOKEN + token), os.O_WRONLY | os.O_CREAT | os.O_EXCL
+                         | getattr(os, "O_NOFOLLOW", 0), 0o600))
+        _step("stage token written")
+    except BaseException:  # made by this run a moment ago (mkdir is exclusive): remove it whole
+        shutil.rmtree(stage, ignore_errors=True)
+        _active.discard(os.path.realpath(stage))
+        if not os.path.lexists(stage):
+            lock.unregister(name)
+        raise
+    return stage
+
+
+def drop_stage(out_dir: Path, lock, stage: Path) -> None:
+    """Remove a staging folder of this run, then its line in the register."""
+    if _is_ours(stage, lock.staging().get(stage.name)) or _empty_folder(stage):
+        shutil.rmtree(stage, ignore_errors=True)
+    _active.discard(os.path.realpath(stage))
+    if not os.path.lexists(stage):
+        lock.unregister(stage.name)
+
+
+def _is_ours(stage: Path, token: str | None) -> bool:
+    """A real folder (not a link) holding its token file (an empty file named after the
+    token: it needs no data block, so a full disk can still make it)."""
+    if not token:
+        return False
+    try:
+        if not stat.S_ISDIR(os.lstat(stage).st_mode):
+            return False
+        held = [n[len(TOKEN):] for n in os.listdir(stage) if n.startswith(TOKEN)]
+        return (len(held) == 1 and hmac.compare_digest(held[0], token)
+                and stat.S_ISREG(os.lstat(stage / (TOKEN + token)).st_mode))
+    except OSError:
+        return False
+
+
+def _empty_folder(stage: Path) -> bool:
+    try:
+        return stat.S_ISDIR(os.lstat(stage).st_mode) and not os.listdir(stage)
+    except OSError:
+        return False
+
+
 def place(stage: Path, out_dir: Path, name: str) -> None:
     """Put ``new/<name>`` at its target, keeping the previous file in ``old/<name>``."""
-    target, new, old = out_dir / name, stage / "new" / name, stage / "old" / name
-    target.parent.mkdir(parents=True, exist_ok=True)
+    new = inside(stage / "new", name)
+    target = make_parents(out_dir, name)
     if os.path.lexists(target):
-        old.parent.mkdir(parents=True, exist_ok=True)
+        try:
+            os.mkdir(stage / "old")
+        except FileExistsError:
+            pass
+        old = make_parents(stage / "old", name)
         try:
             os.link(target, old, follow_symlinks=False)
         except OSError:  # no hard links here: move it aside (rollback puts it back)
@@ -122,7 +253,7 @@ def roll_back(stage: Path, out_dir: Path, plan: dict) -> None:
     """Undo the moves of an unfinished commit (before the switch): every previous file back."""
     for f in reversed(plan["files"]):
         name = f["name"]
-        target, new, old = out_dir / name, stage / "new" / name, stage / "old" / name
+        target, new, old = inside(out_dir, name), inside(stage / "new", name), inside(stage / "old", name)
         if os.path.lexists(old):
             os.replace(old, target)  # same inode (link not yet used): a no-op
         elif not f["had_old"] and not os.path.lexists(new) and os.path.lexists(target):
@@ -132,13 +263,16 @@ def roll_back(stage: Path, out_dir: Path, plan: dict) -> None:
 
 def roll_forward(stage: Path, out_dir: Path, plan: dict) -> list[str]:
     """Finish a commit after the switch: place what is left, remove the stale files.
-    Returns the stale files removed."""
+    Returns the stale files removed (a stale name reached through a link is never removed)."""
     for f in plan["files"]:
-        if os.path.lexists(stage / "new" / f["name"]):
+        if os.path.lexists(inside(stage / "new", f["name"])):
             place(stage, out_dir, f["name"])
     removed = []
     for e in plan["stale"]:
-        p = out_dir / e["name"]
+        try:
+            p = inside(out_dir, e["name"])
+        except ExportError:
+            continue
         if not p.is_symlink() and p.is_file() and file_matches(p, e):
             try:
                 os.remove(p)
@@ -151,19 +285,24 @@ def roll_forward(stage: Path, out_dir: Path, plan: dict) -> list[str]:
 
 def read_plan(stage: Path) -> dict | None:
     try:
-        plan = json.loads((stage / PLAN).read_text())
+        fd = os.open(stage / PLAN, os.O_RDONLY | getattr(os, "O_NOFOLLOW", 0) | getattr(os, "O_NONBLOCK", 0))
+    except OSError:
+        return None
+    try:
+        if not stat.S_ISREG(os.fstat(fd).st_mode):
+            return None
+        with os.fdopen(fd, "rb", closefd=False) as f:
+            plan = json.loads(f.read(64 << 20).decode("utf-8"))
     except (OSError, ValueError):
         return None
+    finally:
+        os.close(fd)
     ok = (isinstance(plan, dict) and plan.get("written_by") == "geomgen"
           and isinstance(plan.get("files"), list) and isinstance(plan.get("stale"), list)
-          and all(isinstance(f, dict) and isinstance(f.get("name"), str) and _inside(f["name"])
-                  for f in plan["files"] + plan["stale"]))
+          and all(isinstance(f, dict) and _parts(f.get("name")) is not None
+                  for f in plan["files"] + plan["stale"])
+          and all(isinstance(f.get("had_old"), bool) for f in plan["files"]))
     return plan if ok else None
-
-
-def _inside(name: str) -> bool:
-    parts = Path(name).parts
-    return bool(parts) and not Path(name).is_absolute() and ".." not in parts
 
 
 def _size_mb(folder: Path) -> float:
@@ -178,37 +317,58 @@ def _size_mb(folder: Path) -> float:
 
 
 def leftovers(out_dir: Path) -> list[Path]:
-    """geomgen's own staging folders in ``out_dir`` (real folders, never links)."""
-    try:
-        return sorted(p for p in out_dir.iterdir()
-                      if p.name.startswith(STAGING_PREFIX) and p.is_dir() and not p.is_symlink())
-    except OSError:
-        return []
+    """geomgen's own staging folders left in ``out_dir``: in the register and holding its token."""
+    from .lock import registered
+
+    return sorted(Path(out_dir) / n for n, t in registered(out_dir).items() if _is_ours(Path(out_dir) / n, t))
 
 
-def recover(out_dir: Path) -> list[str]:
+def recover(out_dir: Path, lock) -> list[str]:
     """Finish or undo what interrupted runs left in ``out_dir``; one note per folder.
 
-    Call only while holding the folder lock (then no live run owns a staging folder)."""
+    Call only while holding the folder lock ``lock`` (then no live run of another process
+    owns a staging folder; this process's own open ones are skipped). Acts only on folders in
+    the lock's register that hold their token; checks every name of a plan before moving
+    anything (refused whole, ExportError, if one passes a link)."""
     notes = []
-    for stage in leftovers(out_dir):
+    for name, token in sorted(lock.staging().items()):
+        stage = Path(out_dir) / name
+        if os.path.realpath(stage) in _active:
+            continue
+        if not os.path.lexists(stage):  # killed after recording it, before making it (or after removing it)
+            lock.unregister(name)
+            continue
+        if not _is_ours(stage, token):
+            if _empty_folder(stage):  # killed after making it, before its token was written
+                os.rmdir(stage)
+            else:
+                notes.append(f"left {name} alone: geomgen recorded a staging folder of that name but this one "
+                             "does not hold its token, so it is not geomgen's")
+            lock.unregister(name)
+            continue
         plan = read_plan(stage)
         try:
             if plan is None:
                 what = (f"removed {stage.name}, left by an interrupted run before it committed "
                         f"({_size_mb(stage):.1f} MB)")
-            elif os.path.lexists(stage / "new" / MANIFEST):
-                roll_back(stage, out_dir, plan)
-                what = (f"an earlier run was interrupted while moving its outputs into place; "
-                        f"its {len(plan['files'])} file(s) were rolled back and the previous outputs restored")
             else:
-                removed = roll_forward(stage, out_dir, plan)
-                what = (f"an earlier run was interrupted just after its outputs were switched in; its commit "
-                        f"was finished ({len(removed)} stale file(s) removed)")
+                for f in plan["files"]:  # every name checked before anything moves
+                    inside(out_dir, f["name"]), inside(stage / "new", f["name"]), inside(stage / "old", f["name"])
+                if os.path.lexists(stage / "new" / MANIFEST):
+                    roll_back(stage, out_dir, plan)
+                    what = (f"an earlier run was interrupted while moving its outputs into place; "
+                            f"its {len(plan['files'])} file(s) were rolled back and the previous outputs restored")
+                else:
+                    removed = roll_forward(stage, out_dir, plan)
+                    what = (f"an earlier run was interrupted just after its outputs were switched in; its commit "
+                            f"was finished ({len(removed)} stale file(s) removed)")
             (stage / PLAN).unlink(missing_ok=True)
             shutil.rmtree(stage)
+        except ExportError as exc:
+            raise ExportError(f"{stage}: cannot finish what an interrupted run left: {exc}") from None
         except OSError as exc:
             raise ExportError(f"{stage}: cannot recover what an interrupted run left "
                               f"({exc.strerror or exc}); nothing was written") from None
+        lock.unregister(name)
         notes.append(what)
     return notes

@@ -23,8 +23,7 @@ from __future__ import annotations
 
 import json
 import os
-import shutil
-import tempfile
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -90,22 +89,26 @@ class Staging:
         self.recovered: list[str] = []
         self._lock = FolderLock(self.out_dir, lock_wait_s)
         self._keep = False  # a rollback failed: leave the staging folder for the next run
+        self._made: list[Path] = []  # folders this run made (taken back if left empty)
 
     def __enter__(self):
+        self._made = _make_folder(self.out_dir)
         try:
-            self.out_dir.mkdir(parents=True, exist_ok=True)
-        except OSError as exc:
-            raise ExportError(f"{self.out_dir}: cannot write here: {exc.strerror or exc}") from None
-        self._lock.__enter__()
+            self._lock.__enter__()
+        except BaseException:
+            _remove_if_empty(self._made)
+            raise
         try:
-            self.recovered = self._lock.note() + journal.recover(self.out_dir)
-            self.dir = Path(tempfile.mkdtemp(prefix=journal.STAGING_PREFIX, dir=self.out_dir))
+            self.recovered = self._lock.note() + journal.recover(self.out_dir, self._lock)
+            self.dir = journal.new_stage(self.out_dir, self._lock)
             (self.dir / "new").mkdir()
         except OSError as exc:
             self._lock.__exit__(None, None, None)
+            _remove_if_empty(self._made)
             raise ExportError(f"{self.out_dir}: cannot write here: {exc.strerror or exc}") from None
         except BaseException:
             self._lock.__exit__(None, None, None)
+            _remove_if_empty(self._made)
             raise
         return self
 
@@ -134,12 +137,7 @@ class Staging:
     def _check_foreign(self, previous: dict) -> None:
         edited = []
         for name in self.names:
-            target = self.out_dir / name
-            for parent in list(Path(name).parents)[:-1]:
-                if (self.out_dir / parent).is_symlink() or (os.path.lexists(self.out_dir / parent)
-                                                            and not (self.out_dir / parent).is_dir()):
-                    raise ExportError(f"{self.out_dir / parent} is a link or not a folder; geomgen does not "
-                                      "write through links (nothing was written)")
+            target = journal.inside(self.out_dir, name)  # no link or file on the way
             if (target.exists() or target.is_symlink()) and name not in previous:
                 raise ExportError(f"{target} exists and was not written by geomgen; "
                                   "move it away or choose another output folder (nothing was written)")
@@ -164,7 +162,7 @@ class Staging:
         """
         previous = _own_manifest(self.out_dir)
         self._check_foreign(previous)
-        entries = {name: e for name, e in previous.items() if (self.out_dir / name).is_file()}
+        entries = {name: e for name, e in previous.items() if _is_file_inside(self.out_dir, name)}
         stale_remove, stale_keep, why = [], [], {}
         for name, e in list(entries.items()):
             if name in self.names or e.get("set", _set_of(e)) != info["set"]:
@@ -239,13 +237,61 @@ class Staging:
             if self.dir is not None and not self._keep:
                 with journal.held_sigint() as hit:  # clean up whole, then let Ctrl-C go on
                     (self.dir / journal.PLAN).unlink(missing_ok=True)
-                    shutil.rmtree(self.dir, ignore_errors=True)
+                    journal.drop_stage(self.out_dir, self._lock, self.dir)
                     interrupted = hit()
+            elif self.dir is not None:  # left for the next run, which finds it in the register
+                journal._active.discard(os.path.realpath(self.dir))
         finally:
             self._lock.__exit__(*exc)
+            _remove_if_empty(self._made)  # a refused run leaves no empty folder behind
         if interrupted and exc[0] is None:
             raise KeyboardInterrupt
         return False
+
+
+def _make_folder(out_dir: Path) -> list[Path]:
+    """Make ``out_dir`` and its missing parents; the folders made, innermost first."""
+    made, p = [], Path(out_dir)
+    while not os.path.lexists(p) and p != p.parent:
+        made.append(p)
+        p = p.parent
+    try:
+        Path(out_dir).mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        _remove_if_empty(made)
+        raise ExportError(f"{out_dir}: cannot write here: {exc.strerror or exc}") from None
+    return made
+
+
+def _remove_if_empty(made: list[Path]) -> None:
+    """Take back the folders a refused run made (only while they are empty)."""
+    for p in made:
+        try:
+            p.rmdir()
+        except OSError:
+            return
+
+
+@contextmanager
+def holding(out_dir, lock_wait_s: float | None = None):
+    """Hold the folder's write lock and first finish or undo what interrupted runs left;
+    yields the notes of that. For every command that reads the folder (``check``,
+    ``report``): what it measures cannot change under it, and no other run commits (and so
+    removes files as stale) until it is done. Re-entrant with :class:`Staging`. A folder
+    made here and left empty (the command was refused) is removed again."""
+    made = _make_folder(Path(out_dir))
+    lock = FolderLock(out_dir, lock_wait_s)
+    try:
+        lock.__enter__()
+    except BaseException:
+        _remove_if_empty(made)
+        raise
+    try:
+        notes = lock.note() + journal.recover(Path(out_dir), lock)
+        yield notes
+    finally:
+        lock.__exit__(None, None, None)
+        _remove_if_empty(made)
 
 
 def write_set(out_dir, outputs: list[Output], info: dict, say=None, overwrite_edited: bool = False) -> Committed:
@@ -254,6 +300,16 @@ def write_set(out_dir, outputs: list[Output], info: dict, say=None, overwrite_ed
         for out in outputs:
             stage.add(out, say)
         return stage.commit(info)
+
+
+def _is_file_inside(out_dir: Path, name: str) -> bool:
+    """A regular file at ``name`` reached without passing a link (a manifest's name through a
+    linked folder is treated as absent: nothing is measured, kept or removed there)."""
+    try:
+        p = journal.inside(Path(out_dir), name)
+    except ExportError:
+        return False
+    return not p.is_symlink() and p.is_file()
 
 
 def _remove_empty_folders(out_dir: Path) -> None:

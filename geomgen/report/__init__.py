@@ -77,10 +77,19 @@ def write_report(project, out_dir=None, *, progress=None, allow_outside_files: b
     SpecError, GeometryError, ExportError, CheckFailed
         As :func:`geomgen.check.run.check`; nothing of the report is written then.
     """
-    from ..outputs import Output
+    from ..outputs import holding
     from ..project import Project
 
     project = Project.of(project, out_dir, allow_outside_files=allow_outside_files)
+    with holding(project.out_dir) as recovered:  # what it reads cannot change under it
+        files = _write_report(project, progress)
+    files.notes[:0] = recovered
+    return files
+
+
+def _write_report(project, progress) -> ReportFiles:
+    from ..outputs import Output
+
     say = progress or (lambda m: None)
     drawing = drawing_data(project, progress=progress)
     with DrawingWorker(drawing, progress) as images:  # drawn in a second process while the check runs

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import difflib
 import typing
+import unicodedata
 from pathlib import Path
 
 import tomllib
@@ -96,13 +97,20 @@ def _cross_checks(data: dict) -> list[str]:
     sections = s if isinstance(s := data.get("sections"), dict) else {}
     names = list(sections)
     surfaces = s if isinstance(s := data.get("surface"), list) else []
+    by_form: dict[str, str] = {}
+    for nm in names:  # 'é' written as one character or as 'e' and an accent: one name to a reader
+        form = unicodedata.normalize("NFKC", nm)
+        if form in by_form:
+            problems.append(f"sections: '{printable(nm, 40)}' and '{printable(by_form[form], 40)}' differ only in "
+                            "how their characters are encoded (Unicode normalisation); give them different names")
+        by_form.setdefault(form, nm)
     seen: dict[str, int] = {}
     for i, surf in enumerate(surfaces):
         if not isinstance(surf, dict):
             continue
         nm = surf.get("name")
         if isinstance(nm, str):
-            key = nm.casefold()  # Wing and wing are one file on a case-insensitive disk
+            key = unicodedata.normalize("NFKC", nm).casefold()  # Wing and wing: one file on some disks
             if key in seen:
                 problems.append(f"{_path(('surface', i, 'name'), data)}: name '{nm}' is already used by "
                                 f"surface[{seen[key]}] (file names would clash)")
@@ -246,6 +254,19 @@ def load_spec(path, allow_outside_files: bool = False) -> Spec:
     files) unless ``allow_outside_files`` is given.
     """
     path = Path(path)
+    text = read_spec_text(path)
+    spec = load_spec_text(text, str(path))
+    spec._source = path  # type: ignore[attr-defined]
+    spec._allow_outside_files = allow_outside_files  # type: ignore[attr-defined]
+    spec._text = text  # type: ignore[attr-defined]  # the bytes validated: studies start from them
+    return spec
+
+
+def read_spec_text(path) -> str:
+    """The text of a spec file through the input guards every spec file passes: regular
+    files only (a FIFO or ``/dev/zero`` is refused, not waited on), at most
+    ``MAX_SPEC_BYTES`` read, UTF-8 (a byte-order mark is dropped). SpecError names the file."""
+    path = Path(path)
     try:
         raw = read_capped(path, MAX_SPEC_BYTES)  # regular files only (a FIFO or /dev/zero would hang)
     except FileNotFoundError:
@@ -253,10 +274,6 @@ def load_spec(path, allow_outside_files: bool = False) -> Spec:
     except NotReadable as exc:
         raise SpecError([f"{path}: cannot read the spec: {exc}"]) from None
     try:
-        text = raw.decode("utf-8-sig")  # a byte-order mark some editors write is accepted
+        return raw.decode("utf-8-sig")  # a byte-order mark some editors write is accepted
     except UnicodeDecodeError:
         raise SpecError([f"{path}: not a text file (not UTF-8)"]) from None
-    spec = load_spec_text(text, str(path))
-    spec._source = path  # type: ignore[attr-defined]
-    spec._allow_outside_files = allow_outside_files  # type: ignore[attr-defined]
-    return spec

@@ -222,6 +222,16 @@ class SurfaceSpec(_Strict):
     printing: Optional[PrintingSpec] = Field(None, description="printable pieces, locators, spar channels")
     laminate: Optional[LaminateSpec] = Field(None, description="cores and moulds")
 
+    @field_validator("name")
+    @classmethod
+    def _plain_name(cls, v):
+        return _file_name_part(v)
+
+    @field_validator("te_thickness")
+    @classmethod
+    def _te_bound(cls, v):
+        return _te_thickness(v)
+
     @model_validator(mode="after")
     def _one_sided(self):
         if self.mirror and self.role in ("mast", "fin"):
@@ -231,6 +241,22 @@ class SurfaceSpec(_Strict):
 
     # station order and spacing are checked on the raw data in load.py, so they are
     # reported even when other fields of the same surface are wrong
+
+
+def _file_name_part(v: str) -> str:
+    """A name that becomes part of file names: besides the pattern, no '..' and no '.' at the
+    end (``mast.`` would make ``set-mast..step``, which is refused as a file name)."""
+    if ".." in v or v.endswith("."):
+        raise ValueError("a name used in file names may not hold '..' or end with '.'")
+    return v
+
+
+def _te_thickness(v: float) -> float:
+    """0 (sharp) or at least :data:`~geomgen.defaults.MIN_TE_THICKNESS_MM`: a thinner open edge
+    cannot be made by the kernel (1e-7 mm failed) and by no shop."""
+    if 0.0 < v < defaults.MIN_TE_THICKNESS_MM:
+        raise ValueError(f"must be 0 (a sharp edge) or at least {defaults.MIN_TE_THICKNESS_MM:g} mm, got {v:g}")
+    return v
 
 
 class Datum(_Strict):
@@ -246,3 +272,8 @@ class Spec(_Strict):
     sections: dict[str, SectionSpec] = Field(min_length=1)
     surface: list[SurfaceSpec] = Field(min_length=1, max_length=MAX_SURFACES)
     flight: Optional[FlightSpec] = Field(None, description="mass, speeds and fluid for the hydrodynamics")
+
+    @field_validator("name")
+    @classmethod
+    def _plain_name(cls, v):
+        return _file_name_part(v)

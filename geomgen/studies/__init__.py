@@ -9,7 +9,8 @@ from .changes import Change, apply, parse_change
 from .figures import FIGURES, variant_figures
 from .run import Executor, Task, evaluate
 from .study import Table, compare, family, parse_values, sweep
-from .tables import study_outputs, to_csv, to_json, to_text
+from .tables import build_failures, study_outputs, to_csv, to_json, to_text
 
-__all__ = ["Change", "apply", "parse_change", "FIGURES", "variant_figures", "Executor", "Task", "evaluate", "Table",
+__all__ = ["build_failures", "Change", "apply", "parse_change", "FIGURES", "variant_figures", "Executor", "Task",
+           "evaluate", "Table",
            "compare", "family", "parse_values", "sweep", "study_outputs", "to_csv", "to_json", "to_text"]

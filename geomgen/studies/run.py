@@ -44,21 +44,34 @@ def evaluate(task: Task) -> dict:
 
 
 def _build_and_check(task: Task) -> dict:
-    """Build and check one variant from its text (written beside its output folder)."""
+    """Build and check one variant in its own output folder ``build_dir``: its spec
+    (``variant.toml``) is written there through the commit like every other output (a file
+    geomgen did not write, a link on the way: refused), then built and checked beside it."""
+    import hashlib
+
+    import tomllib
+
     from ..check.run import check
+    from ..outputs import Output, write_set
     from ..project import Project
 
     assert task.build_dir is not None  # called only for a variant that is built
     out = Path(task.build_dir)
-    out.mkdir(parents=True, exist_ok=True)
-    spec = out / "variant.toml"
-    spec.write_text(task.text)
+    text = task.text if task.text.endswith("\n") else task.text + "\n"
     try:
-        res = check(Project(spec, out / "files", allow_outside_files=True))
+        write_set(out, [Output("variant.toml", "text", text, "the variant's spec, built and checked in this folder")],
+                  {"set": tomllib.loads(text).get("name"), "spec": "variant.toml",
+                   "spec_sha256": hashlib.sha256(text.encode("utf-8")).hexdigest(), "command": "variant"})
+        res = check(Project(out / "variant.toml", out, allow_outside_files=True))
     except GeomgenError as exc:
         return {"check": "error", "check_error": str(exc)}
     figs = {r.figure: r.measured for r in res.records if r.part == res.records[0].part} if res.records else {}
-    return {"check": "ok" if res.ok else "FAULT", "measured_volume_cm3": figs.get("volume_cm3")}
+    row = {"check": "ok" if res.ok else "FAULT", "measured_volume_cm3": figs.get("volume_cm3")}
+    if not res.ok:
+        bad = [f"{r.part} {r.figure}" for r in res.faults + res.failures][:5]
+        row["check_error"] = (f"check found {len(res.faults)} geometry fault(s) and {len(res.failures)} failed "
+                              f"expectation(s) ({', '.join(bad) or 'see its record'}): {out}")
+    return row
 
 
 @dataclass

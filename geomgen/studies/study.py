@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import itertools
 import math
+import os
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -68,19 +69,62 @@ class Table:
 
 
 def _base(project) -> tuple[dict, str]:
-    text = project.spec_path.read_text(encoding="utf-8-sig")
+    """The base spec's data, from the very text that was validated (not read again)."""
+    from ..spec import read_spec_text
+
+    text = getattr(project.spec, "_text", None)
+    if text is None:
+        text = read_spec_text(project.spec_path)
     return tomllib.loads(text), text
 
 
-def _task(project, data: dict, cruise_kmh, build_dir=None) -> Task:
+def _other(path, allow_outside_files: bool) -> dict:
+    """Another spec to compare with: read and validated exactly as the base spec is (regular
+    file, size cap, nesting, TOML errors), every problem named against that file."""
+    from ..spec import load_spec
+
+    return tomllib.loads(load_spec(path, allow_outside_files)._text)  # type: ignore[attr-defined]  # set by load_spec
+
+
+def _task(project, data: dict, cruise_kmh, build_dir=None, source=None) -> Task:
     import tomli_w
 
-    return Task(tomli_w.dumps(data), str(project.spec_path), cruise_kmh, project.allow_outside_files,
+    source = Path(source) if source is not None else project.spec_path
+    if build_dir is not None:  # its spec is read from its own folder: coordinate files by full path
+        data = _with_full_file_paths(data, source.parent)
+    return Task(tomli_w.dumps(data), str(source), cruise_kmh, project.allow_outside_files,
                 str(build_dir) if build_dir is not None else None)
 
 
-def _run(project, datas: list[dict], executor: Executor, cruise_kmh, build_dirs=None) -> list[dict]:
-    tasks = [_task(project, d, cruise_kmh, (build_dirs or [None] * len(datas))[i]) for i, d in enumerate(datas)]
+def _with_full_file_paths(data: dict, base_dir: Path) -> dict:
+    """``data`` with every coordinate file of ``[sections]`` given by its full path, resolved
+    by the spec's own rule (relative to the folder of the spec as it was named)."""
+    import copy
+
+    data = copy.deepcopy(data)
+    for sec in (data.get("sections") or {}).values():
+        if isinstance(sec, dict) and isinstance(sec.get("file"), str) and not Path(sec["file"]).is_absolute():
+            sec["file"] = os.path.abspath(base_dir / sec["file"])
+    return data
+
+
+def _build_folders(root, members: list[str]) -> list[Path]:
+    """One output folder per variant under ``root``, each checked before anything runs: no
+    link or file on the way (else ExportError: nothing is written)."""
+    from ..outputs.journal import inside
+
+    root = Path(root)
+    for m in members:
+        inside(root.parent, f"{root.name}/{m}/variant.toml")
+    return [root / m for m in members]
+
+
+def _run(project, datas: list[dict], executor: Executor, cruise_kmh, build_dirs=None, sources=None) -> list[dict]:
+    """Evaluate every variant; ``sources``: the spec file each one's relative files and
+    messages refer to (default the project's)."""
+    n = len(datas)
+    tasks = [_task(project, d, cruise_kmh, (build_dirs or [None] * n)[i], (sources or [None] * n)[i])
+             for i, d in enumerate(datas)]
     return executor.map(tasks)
 
 
@@ -93,10 +137,12 @@ def compare(project, change_sets: list[list[Change]], others=(), *, executor: Ex
     for cs in change_sets:
         datas.append(apply(data, cs))
         labels.append(" + ".join(c.label for c in cs))
+    sources = [None] * len(datas)
     for other in others:
-        datas.append(tomllib.loads(Path(other).read_text(encoding="utf-8-sig")))
+        datas.append(_other(other, project.allow_outside_files))
         labels.append(Path(other).name)
-    rows = _run(project, datas, executor or Executor(), cruise_kmh)
+        sources.append(other)  # its own folder for its coordinate files, its own name in messages
+    rows = _run(project, datas, executor or Executor(), cruise_kmh, sources=sources)
     for r, lab in zip(rows, labels):
         r["label"] = lab
     with_mast_moves(rows, rows[0])
@@ -118,7 +164,7 @@ def family(project, surface: str, areas_cm2: list[float], keep: str = "aspect", 
         raise SpecError([f"{project.source}: no surface named '{surface}' "
                          f"(the spec has: {', '.join(m.name for m in project.models)})"])
     a0 = intended_figures(model).projected_area_cm2
-    datas, labels, texts, builds = [], [], {}, []
+    datas, labels, texts = [], [], {}
     for a in areas_cm2:
         if not (math.isfinite(a) and a > 0):
             raise SpecError([f"family: area {a!r} cm² must be a positive number"])
@@ -134,7 +180,7 @@ def family(project, surface: str, areas_cm2: list[float], keep: str = "aspect", 
         datas.append(d)
         labels.append(f"{surface} {a:g} cm²")
         texts[member] = _family_header(project, surface, a, a0, keep) + tomli_w.dumps(d)
-        builds.append(Path(build_root) / member if build_root is not None else None)
+    builds = _build_folders(build_root, [d["name"] for d in datas]) if build_root is not None else None
     rows = _run(project, datas, executor or Executor(), cruise_kmh, builds)
     for r, lab, a in zip(rows, labels, areas_cm2):
         r["label"], r["target_area_cm2"] = lab, a
@@ -195,7 +241,7 @@ def sweep(project, axes: dict[str, list[float]], *, grid: bool = False, executor
         if len(combos) > limit:
             raise SpecError([f"sweep of {len(combos)} variants; at most {limit}"])
     datas = [apply(data, [Change("set", p, v) for p, v in c.items()]) for c in combos]
-    builds = [Path(build_root) / f"variant-{i + 1:05d}" for i in range(len(datas))] if build_root else None
+    builds = _build_folders(build_root, [f"variant-{i + 1:05d}" for i in range(len(datas))]) if build_root else None
     rows = _run(project, datas, executor or Executor(), cruise_kmh, builds)
     for i, (r, c) in enumerate(zip(rows, combos)):
         r.update(c)

@@ -48,13 +48,20 @@ def to_text(t: Table) -> str:
             lines.append("  ".join([h.ljust(w0)] + [col[i].rjust(w) for col, w in zip(cols, ws)]))
     else:
         keys = t.inputs + ["stab_lift_pct_weight", "cp_from_mast_mm", "mast_move_mm", "lift_to_drag",
-                           "neutral_point_x_mm", "takeoff_kmh"]
+                           "neutral_point_x_mm", "takeoff_kmh"] + \
+            (["check"] if any("check" in r for r in t.rows) else [])
         lines.append("  ".join(f"{k:>16}" for k in keys))
         for r in t.rows:
             lines.append("  ".join(f"{_fmt(r.get(k)):>16}" for k in keys))
     errs = [(lab, r["error"]) for lab, r in zip(t.labels, t.rows) if r.get("error")]
     if errs:
         lines += ["", f"{len(errs)} variant(s) could not be analysed:"] + [f"  {lab}: {e}" for lab, e in errs]
+    checked = [(lab, r) for lab, r in zip(t.labels, t.rows) if "check" in r]
+    if checked:
+        bad = [(lab, r) for lab, r in checked if r["check"] != "ok"]
+        lines += ["", f"built and checked: {len(checked) - len(bad)} of {len(checked)} variant(s) ok"
+                  + (f"; {len(bad)} not:" if bad else "")]
+        lines += [f"  {lab}: {r['check']}: {r.get('check_error', '')}" for lab, r in bad]
     lines += [""] + [f"note: {n}" for n in t.notes]
     lines += ["mast move: how far the mast must move in its tracks (aft +) to keep the net centre of pressure "
               "under the rider where the base set has it.", "", "CAUTION: " + CAUTION_STUDY]
@@ -171,3 +178,10 @@ def study_outputs(project, t: Table, pairs=(), specs: dict | None = None) -> lis
         outs.append(Output(output_name(member, suffix=".toml", folder="studies"), "text", text,
                            "a spec of the size family (build it with geomgen build)"))
     return outs
+
+
+def build_failures(t: Table) -> tuple[int, int]:
+    """(variants that could not be built or checked, variants whose check found a fault or a
+    failed expectation) of a study run with ``--build``."""
+    return (sum(1 for r in t.rows if r.get("check") == "error" or ("check" not in r and r.get("error"))),
+            sum(1 for r in t.rows if r.get("check") == "FAULT"))
