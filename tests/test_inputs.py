@@ -260,8 +260,9 @@ def test_each_field_stales_exactly_the_outputs_that_read_it(tmp_path):
     (nothing is kept that is wrong); a file called stale must be one whose content the
     change reaches, but for fields the code reads and that happen not to matter in this
     spec (listed below, each with why)."""
-    import tomli_w
     import tomllib
+
+    import tomli_w
 
     base = tomllib.loads(DEMO.read_text())
     for sf in base["surface"]:

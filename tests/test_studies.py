@@ -5,9 +5,9 @@ from __future__ import annotations
 
 import json
 import math
+import tomllib
 
 import pytest
-import tomllib
 from click.testing import CliRunner
 from conftest import DEMO
 

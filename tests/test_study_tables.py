@@ -7,9 +7,9 @@ import csv
 import io
 import json
 import math
+import tomllib
 
 import pytest
-import tomllib
 from click.testing import CliRunner
 from conftest import DEMO
 

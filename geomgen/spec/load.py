@@ -7,11 +7,11 @@ come with the closest valid name. Nothing here raises anything but :class:`SpecE
 from __future__ import annotations
 
 import difflib
+import tomllib
 import typing
 import unicodedata
 from pathlib import Path
 
-import tomllib
 from pydantic import BaseModel, ValidationError
 
 from ..defaults import MAX_ERROR_LINES, MAX_SPEC_BYTES, MAX_SPEC_DEPTH, MIN_STATION_GAP_MM

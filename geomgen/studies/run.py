@@ -48,7 +48,6 @@ def _build_and_check(task: Task) -> dict:
     (``variant.toml``) is written there through the commit like every other output (a file
     geomgen did not write, a link on the way: refused), then built and checked beside it."""
     import hashlib
-
     import tomllib
 
     from ..check.run import check

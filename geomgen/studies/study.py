@@ -12,10 +12,9 @@ from __future__ import annotations
 import itertools
 import math
 import os
+import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
-
-import tomllib
 
 from ..errors import SpecError
 from .changes import Change, apply, get_value
