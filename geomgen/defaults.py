@@ -137,9 +137,11 @@ MAX_ERROR_LINES = 50
 #: Memory budget of one vortex-lattice solve, bytes (1 GiB): a lattice whose matrices
 #: (influence, wash at the force points, Trefftz wash, the solver's copy, free-surface images:
 #: LATTICE_MATRICES x N² float64) would exceed it is refused before anything is allocated.
-#: The machines this runs on have a few GiB shared between users; 1 GiB is about 4000 panels.
+#: The machines this runs on have a few GiB shared between users; 1 GiB is 4,096 panels.
 LATTICE_MEMORY_BUDGET_BYTES = 1 << 30
 LATTICE_MATRICES = 8
+#: The most panels the budget holds (the one number README and messages state).
+LATTICE_MAX_PANELS = int((LATTICE_MEMORY_BUDGET_BYTES / (LATTICE_MATRICES * 8)) ** 0.5)
 
 #: A mounting pad flat over less of its footprint than this is warned about: the fuselage
 #: then bears on a small patch (common practice, no source).

@@ -126,3 +126,20 @@ def test_dxf_bytes_do_not_depend_on_the_hash_seed():
         assert r.returncode == 0, r.stderr
         digests.add(r.stdout.strip())
     assert len(digests) == 1, digests
+
+
+def test_a_spec_opened_through_a_link_finds_its_files_beside_the_link(tmp_path):
+    """The stated rule: coordinate files are relative to the folder of the spec path as given."""
+    from geomgen.project import Project
+    from geomgen.sections import naca
+
+    here, there = tmp_path / "here", tmp_path / "there"
+    here.mkdir()
+    there.mkdir()
+    (there / "s.toml").write_text(wing_spec(section='file = "c.dat"'))
+    pts = naca("0012").loop(40)
+    (here / "c.dat").write_text("beside the link\n" + "\n".join(f"{x:.6f} {y:.6f}" for x, y in pts) + "\n")
+    (here / "s.toml").symlink_to(there / "s.toml")
+    assert Project(here / "s.toml").models  # found beside the link
+    r = balance(there / "s.toml")  # opened directly: its own folder has no c.dat
+    assert r.exit_code == 2 and "c.dat" in r.output

@@ -82,3 +82,60 @@ def test_the_lattice_refuses_before_allocating_when_called_with_more(tmp_path):
 
 def test_a_full_spec_at_default_counts_is_well_inside_the_budget():
     assert types.lattice_bytes(4 * 2 * 16 * 6) < types.MAX_LATTICE_BYTES / 20
+
+
+def test_the_lattice_limit_is_one_number_in_readme_and_messages(tmp_path):
+    from conftest import ROOT
+
+    from geomgen.errors import SpecError
+    from geomgen.hydro.lattice import build_lattice
+    from geomgen.project import Project
+
+    stated = f"{defaults.LATTICE_MAX_PANELS:,} panels"
+    assert defaults.LATTICE_MAX_PANELS == 4096
+    readme = (ROOT / "README.md").read_text()
+    assert stated in readme and "4,380" not in readme
+    text = wing_spec().replace("[[surface]]", "[flight]\nmass_kg = 80\nspeeds_kmh = [20]\n"
+                                              "span_panels = 100\nchord_panels = 40\n[[surface]]", 1)
+    refused_quickly(tmp_path, text, stated)
+    p = tmp_path / "w.toml"
+    p.write_text(wing_spec())
+    with pytest.raises(SpecError, match=stated):
+        build_lattice(Project(p, tmp_path / "o").models * 4, 100, 40)
+
+
+def test_every_list_and_table_of_names_in_the_schema_has_a_count_limit():
+    from geomgen.spec.model import Spec
+
+    schema = Spec.model_json_schema()
+    unbounded = []
+
+    def walk(node, where):
+        if isinstance(node, dict):
+            if node.get("type") == "array" and "maxItems" not in node and "prefixItems" not in node:
+                unbounded.append(where)
+            if node.get("type") == "object" and "additionalProperties" in node and "maxProperties" not in node \
+                    and isinstance(node["additionalProperties"], dict):
+                unbounded.append(where)
+            for k, v in node.items():
+                walk(v, f"{where}.{k}")
+        elif isinstance(node, list):
+            for i, v in enumerate(node):
+                walk(v, f"{where}[{i}]")
+    walk(schema, "spec")
+    assert unbounded == [], unbounded
+
+
+@pytest.mark.parametrize("extra,words", [
+    ("[surface.mount]\npad_x = [20, 120]\npad_width = 40\npad_z = 0\n"
+     + "[[surface.mount.hole]]\nx = 50\ny = 0\ndiameter = 5\n" * 17,
+     ("hole", "16")),
+])
+def test_count_limits_of_holes_are_refused_naming_the_list(tmp_path, extra, words):
+    refused_quickly(tmp_path, wing_spec(extra=extra), *words)
+
+
+def test_too_many_trim_speeds_are_refused_naming_the_list(tmp_path):
+    speeds = ", ".join(str(10 + i * 0.1) for i in range(types.MAX_SPEEDS + 1))
+    text = wing_spec().replace("[[surface]]", f"[flight]\nmass_kg = 80\nspeeds_kmh = [{speeds}]\n[[surface]]", 1)
+    refused_quickly(tmp_path, text, "speeds_kmh", str(types.MAX_SPEEDS))

@@ -208,7 +208,7 @@ def check_memory(models, span_panels: int, chord_panels: int,
         raise SpecError(
             f"flight.span_panels, flight.chord_panels: {span_panels} strips per half span x {chord_panels} along "
             f"the chord make {n} panels over {len(models)} surfaces, whose lattice matrices need "
-            f"{need / 2**30:.1f} GiB, over the {budget / 2**30:.1f} GiB budget (about {fit} panels); "
+            f"{need / 2**30:.1f} GiB, over the {budget / 2**30:.1f} GiB budget (at most {fit:,} panels); "
             f"lower the counts (the defaults converge the neutral point to 0.2 % MAC)")
 
 

@@ -3,10 +3,12 @@
 The images depend only on the drawing part of the report dict (geometry and hydrodynamics,
 :func:`geomgen.report.data.drawing_data`), not on the measurements, so on a machine with two
 cores they are rendered beside the check instead of after it. The worker is a new
-interpreter running this module (``python -m geomgen.report.worker IN``): it reads the plain
-dict from a file and writes the PNG bytes to stdout (pickle), so nothing of the caller's
-state (its main script, the CAD kernel) is shared or run again. If the worker cannot start
-or fails, the images are drawn here instead: the result is the same bytes either way.
+interpreter running this module (``python -m geomgen.report.worker``): it reads the plain
+dict from its stdin and writes the PNG bytes to stdout (pickle), so nothing of the caller's
+state (its main script, the CAD kernel) is shared or run again, and no temporary file is
+left anywhere. The worker ends itself as soon as its parent is gone (a kill of ``report``
+leaves no worker behind). If the worker cannot start or fails, the images are drawn here
+instead: the result is the same bytes either way.
 """
 
 from __future__ import annotations
@@ -15,7 +17,8 @@ import os
 import pickle
 import subprocess
 import sys
-import tempfile
+import threading
+import time
 
 
 def _render(drawing: dict) -> dict:
@@ -30,18 +33,22 @@ class DrawingWorker:
     def __init__(self, drawing: dict, progress=None):
         self.drawing, self.say = drawing, progress or (lambda m: None)
         self.proc: subprocess.Popen | None = None
-        self.tmp: str | None = None
 
     def __enter__(self):
         if (os.cpu_count() or 1) > 1 and os.environ.get("GEOMGEN_REPORT_INLINE") != "1":
+            data = pickle.dumps(self.drawing, protocol=pickle.HIGHEST_PROTOCOL)
             try:
-                fd, self.tmp = tempfile.mkstemp(prefix="geomgen-drawing-", suffix=".pickle")
-                with os.fdopen(fd, "wb") as f:
-                    pickle.dump(self.drawing, f, protocol=pickle.HIGHEST_PROTOCOL)
-                self.proc = subprocess.Popen([sys.executable, "-m", "geomgen.report.worker", self.tmp],
-                                             stdin=subprocess.DEVNULL, stdout=subprocess.PIPE,
+                self.proc = subprocess.Popen([sys.executable, "-m", "geomgen.report.worker", str(os.getpid())],
+                                             stdin=subprocess.PIPE, stdout=subprocess.PIPE,
                                              stderr=subprocess.DEVNULL)
+                pipe = self.proc.stdin
+                assert pipe is not None  # stdin=PIPE
+                pipe.write(data)  # the worker reads it whole before it draws
+                pipe.close()
             except OSError:
+                if self.proc is not None:
+                    self.proc.kill()
+                    self.proc.wait()
                 self.proc = None
         return self
 
@@ -63,15 +70,22 @@ class DrawingWorker:
         if self.proc is not None and self.proc.poll() is None:
             self.proc.kill()
             self.proc.wait()
-        if self.tmp:
-            try:
-                os.remove(self.tmp)
-            except OSError:
-                pass
         return False
 
 
-if __name__ == "__main__":  # the worker: python -m geomgen.report.worker IN.pickle > OUT
-    with open(sys.argv[1], "rb") as f:
-        drawing = pickle.load(f)
+def end_with_parent(parent_pid: int, every_s: float = 0.2) -> None:
+    """End this process as soon as ``parent_pid`` is no longer its parent (the parent died,
+    however: a SIGKILL gives the child no signal). A daemon thread polls ``getppid``."""
+    def watch():
+        while os.getppid() == parent_pid:
+            time.sleep(every_s)
+        os._exit(1)
+    if os.getppid() != parent_pid:
+        os._exit(1)
+    threading.Thread(target=watch, daemon=True).start()
+
+
+if __name__ == "__main__":  # the worker: python -m geomgen.report.worker PARENT_PID < IN.pickle > OUT
+    end_with_parent(int(sys.argv[1]))
+    drawing = pickle.loads(sys.stdin.buffer.read())
     sys.stdout.buffer.write(pickle.dumps(_render(drawing), protocol=pickle.HIGHEST_PROTOCOL))

@@ -14,7 +14,7 @@ from typing import Annotated, Literal, Optional
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator
 
 from ..defaults import MIN_STATION_GAP_MM
-from .types import MAX_HOTWIRE_CUTS, MAX_TEMPLATES, Int, Num
+from .types import MAX_HOTWIRE_CUTS, MAX_OFFSET_COLUMNS, MAX_TEMPLATES, Int, Num
 
 #: Default chord positions of the offset table, % chord: the classic table spacing, dense
 #: at the nose where the shape changes fastest (common practice, no source).
@@ -56,7 +56,7 @@ class ShopSpec(BaseModel):
 
     # -- offset tables ------------------------------------------------------------
     offset_pct: list[ChordPct] = Field(
-        default_factory=lambda: list(OFFSET_PCT_DEFAULT), min_length=2,
+        default_factory=lambda: list(OFFSET_PCT_DEFAULT), min_length=2, max_length=MAX_OFFSET_COLUMNS,
         description="chord positions of the offset table, % of the local chord from the leading edge")
 
     # -- hot-wire profiles ----------------------------------------------------------

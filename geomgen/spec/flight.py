@@ -7,7 +7,7 @@ from typing import Annotated, Literal, Optional, Union
 
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator, model_validator
 
-from .types import DatumMM, Int, Num
+from .types import MAX_SPEEDS, DatumMM, Int, Num
 
 #: Default vortex-lattice strips per half span (cosine spaced). At these counts doubling
 #: both counts moves the neutral point of the demo set by well under 0.2 % MAC
@@ -38,7 +38,7 @@ class FlightSpec(BaseModel):
 
     mass_kg: Num = Field(gt=0.0, le=1000.0, description="total mass carried by the foil, kg")
     speeds_kmh: list[Annotated[Num, Field(gt=0.0, le=200.0)]] = Field(
-        min_length=1, description="speeds to trim at, km/h")
+        min_length=1, max_length=MAX_SPEEDS, description="speeds to trim at, km/h")
     fluid: Union[Literal["seawater", "freshwater"], Num] = Field(
         "seawater", description="seawater or freshwater (ITTC 2011, 15 °C), or a density in kg/m³")
     weight_x_mm: Optional[DatumMM] = Field(

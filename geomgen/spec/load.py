@@ -189,7 +189,7 @@ def _lattice_budget(spec) -> list[str]:
         return []
     return [f"flight span_panels, chord_panels: {ns} x {nc} panels on these surfaces make {n} lattice panels, "
             f"about {need / 2**30:.1f} GiB of matrices; the limit is {MAX_LATTICE_BYTES / 2**30:g} GiB "
-            f"(at most about {int((MAX_LATTICE_BYTES / (8 * LATTICE_MATRICES)) ** 0.5)} panels): fewer panels"]
+            f"(at most {int((MAX_LATTICE_BYTES / (8 * LATTICE_MATRICES)) ** 0.5):,} panels): fewer panels"]
 
 
 def _raw_problems(data, source: str) -> list[str]:

@@ -17,7 +17,7 @@ from ..sections.naca import parse_designation
 from .drawings import ShopSpec
 from .flight import FlightSpec
 from .parts import LaminateSpec, MountSpec, PrintingSpec
-from .types import MAX_CHECK_AT, MAX_DATUM_MM, MAX_STATIONS, MAX_SURFACES, DatumMM, Int, Num
+from .types import MAX_CHECK_AT, MAX_DATUM_MM, MAX_SECTIONS, MAX_STATIONS, MAX_SURFACES, DatumMM, Int, Num
 
 
 class _Strict(BaseModel):
@@ -269,7 +269,7 @@ class Spec(_Strict):
     format: Literal[1] = Field(description="spec format version")
     name: str = Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$", description="set name, used in file names")
     datum: Datum
-    sections: dict[str, SectionSpec] = Field(min_length=1)
+    sections: dict[str, SectionSpec] = Field(min_length=1, max_length=MAX_SECTIONS)
     surface: list[SurfaceSpec] = Field(min_length=1, max_length=MAX_SURFACES)
     flight: Optional[FlightSpec] = Field(None, description="mass, speeds and fluid for the hydrodynamics")
 

@@ -15,7 +15,7 @@ from typing import Annotated, Literal, Optional, Union
 
 from pydantic import BaseModel, ConfigDict, Field, StrictBool, field_validator, model_validator
 
-from .types import MAX_SPLITS, DatumMM, Num
+from .types import MAX_HOLES, MAX_SHIMS, MAX_SPARS, MAX_SPLITS, DatumMM, Num
 
 
 class _Strict(BaseModel):
@@ -120,8 +120,9 @@ class MountSpec(_Strict):
     pad_y: Num = Field(0.0, ge=-5000.0, le=5000.0, description="datum y of the footprint centre, mm")
     min_wall: Num = Field(2.0, ge=0.3, le=50.0,
                             description="least material left under the pad and below/above every hole, mm")
-    hole: list[HoleSpec] = Field(default_factory=list, description="bolt holes, axes parallel to datum z")
-    shim: list[ShimSpec] = Field(default_factory=list, description="printable incidence shims")
+    hole: list[HoleSpec] = Field(default_factory=list, max_length=MAX_HOLES,
+                                 description="bolt holes, axes parallel to datum z")
+    shim: list[ShimSpec] = Field(default_factory=list, max_length=MAX_SHIMS, description="printable incidence shims")
 
     @field_validator("pad_x")
     @classmethod
@@ -202,7 +203,7 @@ class PrintingSpec(_Strict):
     min_wall: Num = Field(1.2, ge=0.2, le=20.0,
                             description="least wall around locator holes and spar channels, printed mm")
     locators: LocatorSpec = Field(default_factory=LocatorSpec, description="alignment pins across joints")
-    spar: list[SparSpec] = Field(default_factory=list, description="straight rod spar channels")
+    spar: list[SparSpec] = Field(default_factory=list, max_length=MAX_SPARS, description="straight rod spar channels")
     mount: StrictBool = Field(True, description="cut the [surface.mount] pad and holes into the printed part")
     mesh_tol: Num = Field(0.05, ge=0.005, le=2.0,
                             description="STL/3MF chordal deviation from the exact surface, printed mm")

@@ -48,6 +48,23 @@ MAX_CHECK_AT = 100
 #: Split positions per printed surface (``printing.split_at``): one joint each.
 MAX_SPLITS = 100
 
+#: Bolt holes, shims and spar channels per surface (``mount.hole``, ``mount.shim``,
+#: ``printing.spar``): a mount has 2-8 bolts; each hole is a boolean cut that costs about
+#: 1.7 s (30 holes added 51 s to a build).
+MAX_HOLES = 16
+MAX_SHIMS = 8
+MAX_SPARS = 8
+
+#: Trim speeds of ``[flight] speeds_kmh``: each one is a trim of the whole lattice (15,000
+#: speeds made check take 108 s); a takeoff-to-top-speed list has 4-10.
+MAX_SPEEDS = 50
+
+#: Chord positions of an offset table (``shop.offset_pct``): a shop table has 10-30 columns.
+MAX_OFFSET_COLUMNS = 100
+
+#: Named sections of a spec: at most one per station of every surface.
+MAX_SECTIONS = MAX_SURFACES * MAX_STATIONS
+
 #: Values of every kind in a spec (keys, numbers, strings, tables); a full spec has a few
 #: hundred. Two million unknown keys once took 68 s and printed two million lines.
 MAX_SPEC_VALUES = 20_000

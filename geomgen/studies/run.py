@@ -73,6 +73,19 @@ def _build_and_check(task: Task) -> dict:
     return row
 
 
+def _end_with_parent(parent_pid: int) -> None:
+    """Pool worker start: end when the study's process is gone (see report.worker)."""
+    import os
+    import threading
+    import time
+
+    def watch():
+        while os.getppid() == parent_pid:
+            time.sleep(0.2)
+        os._exit(1)
+    threading.Thread(target=watch, daemon=True).start()
+
+
 @dataclass
 class Executor:
     """Where the tasks run: ``jobs`` local processes, or a Dask scheduler ``address``."""
@@ -97,8 +110,12 @@ class Executor:
         from concurrent.futures import ProcessPoolExecutor, as_completed
 
         rows = [None] * n
-        # spawn: fresh interpreters, nothing inherited from this process (threads, kernel)
-        with ProcessPoolExecutor(max_workers=self.jobs, mp_context=multiprocessing.get_context("spawn")) as pool:
+        import os  # beside the pool it serves
+
+        # spawn: fresh interpreters, nothing inherited from this process (threads, kernel);
+        # each worker ends itself when this process is gone (a SIGKILL leaves none running)
+        with ProcessPoolExecutor(max_workers=self.jobs, mp_context=multiprocessing.get_context("spawn"),
+                                 initializer=_end_with_parent, initargs=(os.getpid(),)) as pool:
             futures = {pool.submit(evaluate, t): i for i, t in enumerate(tasks)}
             for done, fut in enumerate(as_completed(futures), 1):
                 rows[futures[fut]] = fut.result()
