@@ -191,10 +191,38 @@ def new_stage(out_dir: Path, lock) -> Path:
     return stage
 
 
+def remove_stage(stage: Path, ignore_errors: bool = False) -> None:
+    """Remove a staging folder of geomgen's with its token file last: a run killed halfway
+    through leaves a folder that still holds its token, so the next run still knows it for
+    geomgen's and finishes the removal (``shutil.rmtree`` alone took the token out first now
+    and then, and the leftover was left alone as someone else's)."""
+    try:
+        names = os.listdir(stage)
+    except OSError:
+        if not ignore_errors:
+            raise
+        return
+    for n in sorted(names, key=lambda n: n.startswith(TOKEN)):  # the token file last
+        p = stage / n
+        try:
+            if stat.S_ISDIR(os.lstat(p).st_mode):
+                shutil.rmtree(p)
+            else:
+                os.unlink(p)
+        except OSError:
+            if not ignore_errors:
+                raise
+    try:
+        os.rmdir(stage)
+    except OSError:
+        if not ignore_errors:
+            raise
+
+
 def drop_stage(out_dir: Path, lock, stage: Path) -> None:
     """Remove a staging folder of this run, then its line in the register."""
     if _is_ours(stage, lock.staging().get(stage.name)) or _empty_folder(stage):
-        shutil.rmtree(stage, ignore_errors=True)
+        remove_stage(stage, ignore_errors=True)
     _active.discard(os.path.realpath(stage))
     if not os.path.lexists(stage):
         lock.unregister(stage.name)
@@ -363,7 +391,7 @@ def recover(out_dir: Path, lock) -> list[str]:
                     what = (f"an earlier run was interrupted just after its outputs were switched in; its commit "
                             f"was finished ({len(removed)} stale file(s) removed)")
             (stage / PLAN).unlink(missing_ok=True)
-            shutil.rmtree(stage)
+            remove_stage(stage)
         except ExportError as exc:
             raise ExportError(f"{stage}: cannot finish what an interrupted run left: {exc}") from None
         except OSError as exc:
