@@ -21,23 +21,17 @@ LOFT_SECTIONS = 24
 #: Minimum loft sections per station interval (cubic interpolation needs four).
 LOFT_SECTIONS_PER_INTERVAL_MIN = 5
 
-#: How far the skin's spanwise cubic may stray from a rounded tip's quarter ellipse between
-#: loft sections, mm: the tip gets sections until its chord, interpolated as the skin does,
-#: stays within this of the ellipse (8 sections, the old fixed count, strayed 0.8 mm on a
-#: 120 mm tip chord and 17 mm on a 1,900 mm one, between the last two).
-LOFT_TIP_TOL_MM = 0.005
 #: How far the skin's spanwise cubic through the loft sections may stray from the model's
 #: section midway between two of them, mm (checked on loops of LOFT_FOLLOW_POINTS_PER_SIDE
-#: points a side); a section is added there until it does not. The demo needs none added.
+#: points a side); a section is added there until it does not. The demo needs none added;
+#: a rounded tip's quarter ellipse does (8 sections strayed 0.8 mm on a 120 mm tip chord and
+#: 17.6 mm on a 1,900 mm one; refined: 22 and 36).
 LOFT_FOLLOW_TOL_MM = 0.005
 LOFT_FOLLOW_POINTS_PER_SIDE = 40
 #: Loft sections closer than twice this are not split further, mm.
 LOFT_FOLLOW_MIN_GAP_MM = 0.05
 #: Most loft sections one crease-free segment gets.
 LOFT_SECTIONS_MAX_PER_SEGMENT = 400
-
-#: Most loft sections a rounded tip gets (a 5,000 mm tip chord needs about 200).
-LOFT_TIP_SECTIONS_MAX = 400
 
 #: Chord fraction where the finite-trailing-edge thickening starts (cubic ramp, C2).
 TE_RAMP_START = 0.5

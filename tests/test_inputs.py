@@ -104,12 +104,18 @@ def test_stabilizer_edit_leaves_the_other_surfaces_drawings(tmp_path):
     assert "| current |" in index and "STALE" not in index
 
 
-def test_edited_stale_file_named_with_its_input(tmp_path):
+def _edited_offsets_then_stabilizer_incidence(tmp_path):
+    """The stabilizer's offset table edited by hand, then its incidence changed in the spec."""
     spec, out = demo(tmp_path), tmp_path / "out"
     run("drawings", spec, "-o", out)
     csv = out / "drawings" / f"{SET}-stabilizer-offsets.csv"
     csv.write_text(csv.read_text() + "# my note\n")
     edit(spec, "incidence = 2.5", "incidence = 2.0")
+    return spec, out, csv
+
+
+def test_edited_stale_file_named_with_its_input(tmp_path):
+    spec, out, csv = _edited_offsets_then_stabilizer_incidence(tmp_path)
     res = run("balance", spec, "-o", out)
     assert csv.exists()
     assert re.search(r'surface "stabilizer" incidence changed: left 1 stale file', res.output)
@@ -374,11 +380,7 @@ def test_changed_inputs_of_old_and_other_version_entries():
 
 
 def test_an_edited_stale_file_is_current_again_when_its_input_comes_back(tmp_path):
-    spec, out = demo(tmp_path), tmp_path / "out"
-    run("drawings", spec, "-o", out)
-    csv = out / "drawings" / f"{SET}-stabilizer-offsets.csv"
-    csv.write_text(csv.read_text() + "# my note\n")
-    edit(spec, "incidence = 2.5", "incidence = 2.0")
+    spec, out, csv = _edited_offsets_then_stabilizer_incidence(tmp_path)
     run("balance", spec, "-o", out)
     edit(spec, "incidence = 2.0", "incidence = 2.5")
     run("balance", spec, "-o", out)

@@ -174,9 +174,7 @@ class SurfaceModel:
     def trailing_edge_corners_at(self, s) -> np.ndarray:
         """(n, 2, 3) the finished section's trailing-edge corners (upper end, lower end) at
         datum span coordinates ``s`` (n,): one point twice on a sharp edge."""
-        axis = int(np.argmax(np.abs(self.span_axis)))
-        sign = float(np.sign(self.span_axis[axis]))
-        y = (np.atleast_1d(np.asarray(s, float)) - self.position[axis]) * sign
+        y = self._span_of(s)
         one = np.array([1.0])
         out = []
         for v in y:
@@ -188,10 +186,12 @@ class SurfaceModel:
 
     def leading_edges_at(self, s) -> np.ndarray:
         """(n, 3) leading edges (:meth:`leading_edge`) at datum span coordinates ``s`` (n,)."""
+        return np.array([self.leading_edge(v) for v in self._span_of(s)]).reshape(-1, 3)
+
+    def _span_of(self, s) -> np.ndarray:
+        """Span positions y (n,) of datum span coordinates ``s`` (n,)."""
         axis = int(np.argmax(np.abs(self.span_axis)))
-        sign = float(np.sign(self.span_axis[axis]))
-        y = (np.atleast_1d(np.asarray(s, float)) - self.position[axis]) * sign
-        return np.array([self.leading_edge(v) for v in y]).reshape(-1, 3)
+        return (np.atleast_1d(np.asarray(s, float)) - self.position[axis]) * float(np.sign(self.span_axis[axis]))
 
     @property
     def lift_axis(self) -> np.ndarray:
@@ -342,25 +342,12 @@ class SurfaceModel:
         return seg
 
     def _tip_sections(self, n: int) -> np.ndarray:
-        """Loft positions over the rounded tip, even in the ellipse angle, at least ``n`` and as
-        many more (doubling) as the skin's spanwise cubic through them needs to stay within
-        ``LOFT_TIP_TOL_MM`` of the ellipse's chord (the chord changes ever faster toward the
-        end: a fixed count strayed by 0.7 % of the tip chord between the last two)."""
-        from scipy.interpolate import make_interp_spline
-
-        last, L = float(self.planform.y[-1]), self.tip_length
-        c0 = float(self.planform("chord", last))
-        while True:
-            th = np.linspace(0.0, self._theta_max, n)
-            y = last + L * np.sin(th)
-            y[-1] = self.half_span
-            fine = np.linspace(0.0, self._theta_max, 16 * n)
-            yf = last + L * np.sin(fine)
-            cubic = make_interp_spline(y, c0 * np.cos(th), k=3)
-            err = np.abs(cubic(np.clip(yf, y[0], y[-1])) - c0 * np.cos(fine)).max()
-            if err <= defaults.LOFT_TIP_TOL_MM or n >= defaults.LOFT_TIP_SECTIONS_MAX:
-                return y
-            n = min(int(math.ceil(1.25 * n)), defaults.LOFT_TIP_SECTIONS_MAX)
+        """``n`` loft positions over the rounded tip, even in the ellipse angle (dense toward the
+        end, where the chord changes ever faster); :meth:`_followed` adds what the skin needs."""
+        th = np.linspace(0.0, self._theta_max, n)
+        y = float(self.planform.y[-1]) + self.tip_length * np.sin(th)
+        y[-1] = self.half_span
+        return y
 
     def _with_stations(self, y: np.ndarray, a: float, c: float) -> np.ndarray:
         """Smooth interpolation crosses stations inside a segment: put a loft section on each
